@@ -1,0 +1,280 @@
+"""Result of a voyage run: time series, events, summary; CSV/JSON export.
+
+Every quantity is for the whole ship (all tanks). Column and key names carry
+their unit (``pressure_barg``, ``boil_off_kg_h``, ``cargo_t``).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import CAUTION
+from .units import J_PER_KWH, SECONDS_PER_DAY, SECONDS_PER_HOUR, T_ZERO_C, pa_to_barg
+
+#: Time-series columns always present, in order, with their meaning.
+TIMESERIES_COLUMNS = {
+    "time_h": "time from voyage start [h]",
+    "leg": "voyage leg",
+    "control": "what is setting the pressure",
+    "pressure_barg": "tank pressure [barg]",
+    "liquid_temp_c": "liquid temperature [degC]",
+    "vapour_temp_c": "vapour temperature [degC]",
+    "fill_pct": "liquid volume / tank volume [%]",
+    "liquid_level_m": "liquid level above the tank bottom [m]",
+    "cargo_t": "cargo on board, liquid + vapour, all tanks [t]",
+    "liquid_t": "liquid on board, all tanks [t]",
+    "heat_in_kw": "heat flowing in through the insulation, all tanks [kW]",
+    "boil_off_kg_h": "vapour drawn off by all sinks [kg/h]",
+    "fuel_kg_h": "vapour burned as fuel [kg/h]",
+    "reliquefied_kg_h": "vapour reliquefied and returned [kg/h]",
+    "oxidised_kg_h": "vapour burned in the oxidiser [kg/h]",
+    "vented_kg_h": "vapour released by the relief valves [kg/h]",
+    "reliquefaction_power_kw": "electrical power of the reliquefaction plant [kW]",
+    "cargo_loss_t": "cargo lost since the start (fuel + oxidiser + vented) [t]",
+}
+
+
+@dataclass(frozen=True)
+class Event:
+    """Something that happened on the voyage.
+
+    Attributes
+    ----------
+    time : float  from voyage start [s]
+    kind : str  e.g. ``relief-lift``, ``liquid-full``, ``plant-trip``
+    detail : str  plain words
+    """
+
+    time: float
+    kind: str
+    detail: str
+
+    def as_dict(self) -> dict:
+        """``{time_h, kind, detail}`` as in ``summary.json``."""
+        return {"time_h": round(self.time / SECONDS_PER_HOUR, 6), "kind": self.kind,
+                "detail": self.detail}
+
+
+@dataclass
+class VoyageResult:
+    """Everything a run produced.
+
+    Attributes
+    ----------
+    title : str
+    model : str
+    cargo : str
+    status : str  ``completed``, ``stopped`` (a hazard ended the run) or ``failed``
+    message : str
+    timeseries : pandas.DataFrame  columns of :data:`TIMESERIES_COLUMNS`
+    events : list[Event]
+    summary : dict  the ``summary.json`` content
+    """
+
+    title: str
+    model: str
+    cargo: str
+    status: str
+    message: str
+    timeseries: pd.DataFrame
+    events: list[Event] = field(default_factory=list)
+    summary: dict = field(default_factory=dict)
+
+    @property
+    def time_to_relief_h(self) -> float | None:
+        """Time of the first relief-valve lift [h], or None."""
+        return self.summary.get("time_to_relief_h")
+
+    def events_frame(self) -> pd.DataFrame:
+        """Events as a table with ``time_h, kind, detail``."""
+        return pd.DataFrame([e.as_dict() for e in self.events], columns=["time_h", "kind", "detail"])
+
+
+def _sample_times(segments, t_final: float) -> list[float]:
+    """Hourly grid (finer for short runs) plus every segment end."""
+    step = SECONDS_PER_HOUR
+    if t_final < 2 * SECONDS_PER_DAY:
+        step = max(t_final / 96.0, 60.0)
+    if t_final > 400 * SECONDS_PER_DAY:
+        step = math.ceil(t_final / 9600.0 / SECONDS_PER_HOUR) * SECONDS_PER_HOUR
+    grid = np.arange(0.0, t_final, step).tolist()
+    times = sorted(set(grid) | {seg[1] for seg in segments} | {t_final})
+    return times
+
+
+def build_result(voyage, segments, status: str, message: str, t_final: float) -> VoyageResult:
+    """Sample the segments and assemble a :class:`VoyageResult` (whole ship)."""
+    scenario = voyage.scenario
+    count = voyage.count
+    n = voyage.n_model
+    spec = scenario.reliquefaction
+    specific_power = spec.specific_power if spec is not None else 0.0
+    times = np.array(_sample_times(segments, t_final))
+    blocks = []
+    final_y = None
+    # Each sample belongs to the segment that ends at or after it.
+    ends = np.array([seg[1] for seg in segments])
+    owner = np.minimum(np.searchsorted(ends, times, side="left"), len(segments) - 1)
+    for si, (t0, t1, sol, mode, caps, leg) in enumerate(segments):
+        ts = times[owner == si]
+        if ts.size == 0:
+            continue
+        y = np.atleast_2d(sol(np.clip(ts, t0, t1)))
+        if y.shape[0] != n + 5:
+            y = y.T
+        blocks.append(_columns(voyage, ts, y, mode, caps, leg, specific_power))
+        final_y = y[:, -1]
+    frame = pd.DataFrame({k: np.concatenate([b[k] for b in blocks]) for k in blocks[0]})
+    events = sorted(voyage.events, key=lambda e: e.time)
+    summary = _summary(voyage, frame, events, final_y, status, message, t_final, specific_power)
+    return VoyageResult(scenario.title, scenario.model, scenario.cargo, status, message, frame,
+                        events, summary)
+
+
+def _columns(voyage, ts, y, mode, caps, leg, specific_power) -> dict:
+    """Time-series columns (whole ship) for the samples of one segment."""
+    count, n = voyage.count, voyage.n_model
+    state = voyage.model.evaluate_many(y[:n], leg.air_temperature, leg.sea_temperature)
+    rates = [np.broadcast_to(np.asarray(r, dtype=float), ts.shape)
+             for r in voyage.rates(state, mode, caps)]
+    idx = voyage.index
+    zero = np.zeros_like(ts)
+
+    def per_hour(key):
+        return rates[idx[key]] * count * SECONDS_PER_HOUR if key in idx else zero
+
+    reliq = per_hour("reliquefaction")
+    fill = np.asarray(state.fill, dtype=float)
+    return {
+        "time_h": ts / SECONDS_PER_HOUR,
+        "leg": np.full(ts.shape, leg.name, dtype=object),
+        "control": np.full(ts.shape, voyage.describe(mode), dtype=object),
+        "pressure_barg": pa_to_barg(state.pressure),
+        "liquid_temp_c": state.liquid_temperature - T_ZERO_C,
+        "vapour_temp_c": state.vapour_temperature - T_ZERO_C,
+        "fill_pct": 100.0 * fill,
+        "liquid_level_m": np.asarray(voyage.shape.level(np.clip(fill, 0.0, 1.0) * voyage.volume)),
+        "cargo_t": (state.liquid_mass + state.vapour_mass) * count / 1000.0,
+        "liquid_t": state.liquid_mass * count / 1000.0,
+        "heat_in_kw": state.heat_in * count / 1000.0,
+        "boil_off_kg_h": sum(rates) * count * SECONDS_PER_HOUR,
+        "fuel_kg_h": per_hour("fuel"),
+        "reliquefied_kg_h": reliq,
+        "oxidised_kg_h": per_hour("oxidiser"),
+        "vented_kg_h": per_hour("relief"),
+        "reliquefaction_power_kw": reliq / SECONDS_PER_HOUR * specific_power / 1000.0,
+        "cargo_loss_t": (y[n + 1] + y[n + 3] + y[n + 4]) * count / 1000.0,
+    }
+
+
+def _summary(voyage, frame, events, final_y, status, message, t_final, specific_power) -> dict:
+    scenario = voyage.scenario
+    count = voyage.count
+    n = voyage.n_model
+    first = frame.iloc[0]
+    last = frame.iloc[-1]
+    kg_to_t = count / 1000.0
+    heat_j, fuel, reliq, oxid, vent = (float(v) for v in final_y[n:n + 5])
+    initial_t = float(first["cargo_t"])
+    final_t = float(last["cargo_t"])
+    boil_off = (fuel + reliq + oxid + vent) * kg_to_t
+    days = t_final / SECONDS_PER_DAY
+    relief = [e.time for e in events if e.kind == "relief-lift"]
+    time_to_relief = relief[0] / SECONDS_PER_HOUR if relief else None
+    relief_barg = pa_to_barg(scenario.tank.relief_set_pressure)
+    return {
+        "title": scenario.title,
+        "model": scenario.model,
+        "cargo": scenario.cargo,
+        "status": status,
+        "message": message,
+        "voyage_days": scenario.duration / SECONDS_PER_DAY,
+        "simulated_days": days,
+        "tank_count": count,
+        "tank_volume_m3": voyage.volume,
+        "u_value_w_m2k": voyage.u_value,
+        "time_to_relief_h": time_to_relief,
+        "relief_set_barg": relief_barg,
+        "initial_pressure_barg": float(first["pressure_barg"]),
+        "max_pressure_barg": float(frame["pressure_barg"].max()),
+        "final_pressure_barg": float(last["pressure_barg"]),
+        "margin_to_relief_bar": relief_barg - float(frame["pressure_barg"].max()),
+        "initial_liquid_temp_c": float(first["liquid_temp_c"]),
+        "final_liquid_temp_c": float(last["liquid_temp_c"]),
+        "initial_fill_pct": float(first["fill_pct"]),
+        "final_fill_pct": float(last["fill_pct"]),
+        "max_fill_pct": float(frame["fill_pct"].max()),
+        "initial_cargo_t": initial_t,
+        "final_cargo_t": final_t,
+        "boil_off_t": boil_off,
+        "vented_t": vent * kg_to_t,
+        "reliquefied_t": reliq * kg_to_t,
+        "fuel_t": fuel * kg_to_t,
+        "oxidised_t": oxid * kg_to_t,
+        "cargo_loss_t": (fuel + oxid + vent) * kg_to_t,
+        "cargo_loss_pct": 100.0 * (fuel + oxid + vent) * kg_to_t / initial_t if initial_t else 0.0,
+        "mean_bor_pct_day": 100.0 * boil_off / initial_t / days if days > 0 and initial_t else 0.0,
+        "heat_in_mwh": heat_j * count / J_PER_KWH / 1000.0,
+        "mean_heat_in_kw": heat_j * count / t_final / 1000.0 if t_final > 0 else 0.0,
+        "reliquefaction_energy_kwh": reliq * count * specific_power / J_PER_KWH,
+        "events": [e.as_dict() for e in events],
+        "caution": CAUTION,
+    }
+
+
+def _clean(value):
+    """JSON-safe: NaN/inf become None, numpy scalars become Python numbers."""
+    if isinstance(value, dict):
+        return {k: _clean(v) for k, v in value.items()}
+    if isinstance(value, list | tuple):
+        return [_clean(v) for v in value]
+    if isinstance(value, np.generic):
+        value = value.item()
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    return value
+
+
+def summary_json(result: VoyageResult) -> str:
+    """The ``summary.json`` text."""
+    return json.dumps(_clean(result.summary), indent=2)
+
+
+def timeseries_csv(result: VoyageResult) -> str:
+    """The ``timeseries.csv`` text."""
+    return result.timeseries.to_csv(index=False, float_format="%.6g")
+
+
+def write_outputs(result: VoyageResult, out_dir: str | os.PathLike) -> list[Path]:
+    """Write ``summary.json`` and ``timeseries.csv`` into ``out_dir``.
+
+    Both files are written to temporary names first and renamed into place,
+    so a failure never leaves a half-written file behind.
+    """
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    payloads = {"summary.json": summary_json(result), "timeseries.csv": timeseries_csv(result)}
+    written = []
+    temps = []
+    try:
+        for name, text in payloads.items():
+            fd, tmp = tempfile.mkstemp(dir=out, prefix=f".{name}.", suffix=".tmp")
+            with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
+                fh.write(text)
+            temps.append((tmp, out / name))
+        for tmp, final in temps:
+            os.replace(tmp, final)
+            written.append(final)
+    finally:
+        for tmp, _ in temps:
+            if os.path.exists(tmp):
+                os.unlink(tmp)
+    return written

@@ -1,0 +1,478 @@
+"""The voyage orchestrator: legs x pressure-control modes x events.
+
+One tank is integrated (all tanks are identical and share the ship's plant
+equally); results are scaled to the whole ship at the end.
+
+Pressure control
+----------------
+Four sinks take vapour from the tank, each with a set pressure and a capacity
+that may change with time (fuel demand per leg, plant outages):
+
+====================  ==========================  ======================
+sink                  set pressure                capacity
+====================  ==========================  ======================
+fuel (engines)        fuel floor pressure         leg fuel demand
+reliquefaction        hold pressure               plant capacity (0 in an outage)
+oxidiser              oxidiser set pressure       oxidiser capacity
+relief valve          relief set pressure         unlimited
+====================  ==========================  ======================
+
+At any instant each sink is *off* (tank below its set pressure), *at
+capacity* (tank above it), or *holding* (tank at its set pressure, the sink
+taking exactly what keeps dp/dt = 0, between nothing and its capacity). At
+most one sink holds at a time. Sinks are ranked by set pressure, ties in the
+order above: fuel first, relief last.
+
+Because dp/dt is affine in the withdrawal rates (see :mod:`sim.models`), the
+holding rate is a closed-form function of the state, so every switch is a
+continuous event function of the state: pressure crossing a set pressure,
+or a holding rate reaching zero or the sink's capacity. The voyage is
+integrated in segments (legs and outages cut it), each restarted at every
+switch, with ``max_step`` capped so no switch is stepped over.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.integrate import solve_ivp
+
+from . import heat as heat_mod
+from .cargo import saturation_table
+from .models import MODELS
+from .results import Event, build_result
+from .scenario import Scenario
+
+#: Largest integration step [s]; keeps every switch and hazard resolvable.
+MAX_STEP = 6 * 3600.0
+#: Relative tolerance of the integration.
+RTOL = 1e-8
+#: Relative band around a set pressure treated as "at the set pressure".
+AT_SET_TOLERANCE = 1e-7
+#: Segment-count guard against a control loop that fails to settle.
+MAX_SEGMENTS = 20_000
+
+VAPOUR, RELIQUEFY = "vapour", "reliquefy"
+
+
+@dataclass(frozen=True)
+class Sink:
+    """A pressure-control sink (per tank).
+
+    Attributes
+    ----------
+    key : str  ``fuel``, ``reliquefaction``, ``oxidiser`` or ``relief``
+    label : str  for event texts
+    kind : str  VAPOUR (vapour leaves the tank) or RELIQUEFY (returns as liquid)
+    set_pressure : float  [Pa]
+    """
+
+    key: str
+    label: str
+    kind: str
+    set_pressure: float
+
+
+@dataclass(frozen=True)
+class Mode:
+    """Which sinks run at capacity and which one (if any) holds the pressure."""
+
+    active: frozenset = frozenset()
+    holding: int | None = None
+
+
+class _Voyage:
+    """Working state of one simulation (not part of the public API)."""
+
+    def __init__(self, scenario: Scenario):
+        self.scenario = scenario
+        tank = scenario.tank
+        self.count = tank.count
+        self.table = saturation_table(scenario.cargo)
+        self.shape = tank.shape
+        self.volume = self.shape.volume()
+        area = self.shape.surface_area()
+        ins = scenario.insulation
+        if ins.u_value is not None:
+            u_value = ins.u_value
+        else:
+            u_value = heat_mod.u_value_from_rated_bor(
+                ins.rated_bor, self.table, self.volume, area,
+                ins.rated_fill if ins.rated_fill is not None else tank.fill,
+                tank.pressure, ins.rated_air_temperature, ins.rated_sea_temperature,
+                ins.air_exposed_fraction,
+            )
+        self.u_value = u_value
+        self.area = area
+        ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
+        self.model = MODELS[scenario.model](self.table, self.volume, ua_air, ua_sea,
+                                            shape=self.shape)
+        self.n_model = len(self.model.state_names)
+
+        sinks = [Sink("fuel", "fuel (engines)", VAPOUR, scenario.fuel_floor_pressure)]
+        if scenario.reliquefaction is not None:
+            sinks.append(Sink("reliquefaction", "reliquefaction plant", RELIQUEFY,
+                              scenario.reliquefaction.hold_pressure))
+        if scenario.oxidiser is not None:
+            sinks.append(Sink("oxidiser", "oxidiser", VAPOUR, scenario.oxidiser.set_pressure))
+        sinks.append(Sink("relief", "relief valve", VAPOUR, tank.relief_set_pressure))
+        order = {s.key: i for i, s in enumerate(sinks)}
+        self.sinks = sorted(sinks, key=lambda s: (s.set_pressure, order[s.key]))
+        self.index = {s.key: i for i, s in enumerate(self.sinks)}
+        self._cache_key = None
+        self._cache_state = None
+        self.events: list[Event] = []
+        self.relief_open = False
+
+    # -- capacities and ambient ---------------------------------------------
+    def leg_at(self, t: float):
+        """The leg running at time t [s] (the last leg after the end)."""
+        start = 0.0
+        for leg in self.scenario.legs:
+            if t < start + leg.duration:
+                return leg
+            start += leg.duration
+        return self.scenario.legs[-1]
+
+    def outages(self, key: str) -> tuple:
+        """Outage windows of a sink."""
+        sc = self.scenario
+        if key == "fuel":
+            return sc.fuel_outages
+        if key == "reliquefaction" and sc.reliquefaction is not None:
+            return sc.reliquefaction.outages
+        if key == "oxidiser" and sc.oxidiser is not None:
+            return sc.oxidiser.outages
+        return ()
+
+    def down(self, key: str, t: float) -> bool:
+        """True if a sink is out of service at time t [s]."""
+        return any(o.start <= t < o.end for o in self.outages(key))
+
+    def capacities(self, t: float) -> list[float]:
+        """Capacity of each sink per tank during the segment starting at t [kg/s]."""
+        leg = self.leg_at(t)
+        caps = []
+        for sink in self.sinks:
+            if self.down(sink.key, t):
+                caps.append(0.0)
+            elif sink.key == "fuel":
+                caps.append(leg.fuel_demand / self.count)
+            elif sink.key == "reliquefaction":
+                caps.append(self.scenario.reliquefaction.capacity / self.count)
+            elif sink.key == "oxidiser":
+                caps.append(self.scenario.oxidiser.capacity / self.count)
+            else:
+                caps.append(math.inf)
+        return caps
+
+    def breakpoints(self) -> list[float]:
+        """Times at which capacities or ambient change [s]."""
+        end = self.scenario.duration
+        points = {0.0, end}
+        t = 0.0
+        for leg in self.scenario.legs:
+            t += leg.duration
+            points.add(min(t, end))
+        for key in ("fuel", "reliquefaction", "oxidiser"):
+            for o in self.outages(key):
+                points.update(p for p in (o.start, o.end) if 0.0 <= p <= end)
+        return sorted(points)
+
+    # -- state evaluation -----------------------------------------------------
+    def evaluate(self, y, leg):
+        key = (y[0], y[1], leg.air_temperature, leg.sea_temperature) if self.n_model == 2 else (
+            tuple(y[: self.n_model]), leg.air_temperature, leg.sea_temperature)
+        if key != self._cache_key:
+            self._cache_state = self.model.evaluate(y[: self.n_model], leg.air_temperature,
+                                                    leg.sea_temperature)
+            self._cache_key = key
+        return self._cache_state
+
+    def rates(self, state, mode: Mode, caps) -> list[float]:
+        """Withdrawal rate of each sink in a mode [kg/s]."""
+        rates = [0.0] * len(self.sinks)
+        for k in mode.active:
+            rates[k] = caps[k]
+        if mode.holding is not None:
+            rates[mode.holding] = self.holding_rate(state, mode, caps)
+        return rates
+
+    def holding_rate(self, state, mode: Mode, caps) -> float:
+        """Rate of the holding sink that keeps dp/dt = 0 [kg/s]."""
+        a0, b_out, b_rl = self.model.pressure_rate_coefficients(state)
+        rest = a0
+        for k in mode.active:
+            rest -= (b_rl if self.sinks[k].kind == RELIQUEFY else b_out) * caps[k]
+        k = mode.holding
+        return rest / (b_rl if self.sinks[k].kind == RELIQUEFY else b_out)
+
+    def flows(self, rates) -> tuple[float, float]:
+        vapour = sum(r for r, s in zip(rates, self.sinks) if s.kind == VAPOUR)
+        reliq = sum(r for r, s in zip(rates, self.sinks) if s.kind == RELIQUEFY)
+        return vapour, reliq
+
+    # -- mode selection -----------------------------------------------------
+    def choose_mode(self, state, caps, force_active=(), force_inactive=()) -> Mode:
+        """Mode for a state, walking the sinks upward in set pressure."""
+        pressure = state.pressure
+        active: set[int] = set()
+        for k, sink in enumerate(self.sinks):
+            if caps[k] <= 0.0 or k in force_inactive:
+                continue
+            if k in force_active or pressure > sink.set_pressure * (1.0 + AT_SET_TOLERANCE):
+                active.add(k)
+                continue
+            if pressure >= sink.set_pressure * (1.0 - AT_SET_TOLERANCE):
+                trial = Mode(frozenset(active), k)
+                needed = self.holding_rate(state, trial, caps)
+                if needed <= 0.0:
+                    break
+                if needed <= caps[k]:
+                    return trial
+                active.add(k)
+                continue
+            break
+        return Mode(frozenset(active), None)
+
+    # -- events ---------------------------------------------------------------
+    def event_functions(self, mode: Mode, caps, leg, watch_vacuum: bool):
+        """Continuous event functions for a mode: list of (function, tag)."""
+        funcs = []
+        table = self.table
+
+        def make(fn, tag, direction):
+            fn.terminal = True
+            fn.direction = direction
+            funcs.append((fn, tag))
+
+        make(lambda t, y: self.evaluate(y, leg).fill - 1.0, ("liquid-full",), 1)
+        low = table.temperature_min * (1.0 + 1e-9)
+        high = table.temperature_max * (1.0 - 1e-9)
+        make(lambda t, y: self.evaluate(y, leg).liquid_temperature - low, ("low-limit",), -1)
+        make(lambda t, y: self.evaluate(y, leg).liquid_temperature - high, ("high-limit",), 1)
+        if watch_vacuum:
+            vac = self.scenario.tank.vacuum_pressure
+            make(lambda t, y: self.evaluate(y, leg).pressure - vac, ("vacuum",), -1)
+        if mode.holding is None:
+            for k, sink in enumerate(self.sinks):
+                if caps[k] <= 0.0:
+                    continue
+                p_set = sink.set_pressure
+                direction = -1 if k in mode.active else 1
+                make(lambda t, y, p_set=p_set: self.evaluate(y, leg).pressure - p_set,
+                     ("cross", k, direction), direction)
+        else:
+            k = mode.holding
+            make(lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps),
+                 ("stop-draw", k), -1)
+            if math.isfinite(caps[k]):
+                make(lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps) - caps[k],
+                     ("over-capacity", k), 1)
+        return funcs
+
+    def describe(self, mode: Mode) -> str:
+        """Plain words for what is controlling the pressure."""
+        if mode.holding is not None:
+            sink = self.sinks[mode.holding]
+            return f"{sink.key} holding"
+        if any(self.sinks[k].key == "relief" for k in mode.active):
+            return "relief venting"
+        return "pressure rising" if not mode.active else "pressure moving, " + "+".join(
+            sorted(self.sinks[k].key for k in mode.active)) + " at capacity"
+
+    # -- bookkeeping of control events ---------------------------------------
+    def note(self, t: float, kind: str, detail: str) -> None:
+        self.events.append(Event(t, kind, detail))
+
+    def note_mode_change(self, t: float, old: Mode | None, new: Mode, state) -> None:
+        relief = self.index["relief"]
+        venting = relief in new.active or new.holding == relief
+        from .units import pa_to_barg
+
+        p_txt = f"{pa_to_barg(state.pressure):.3f} barg"
+        if venting and not self.relief_open:
+            self.note(t, "relief-lift", f"relief valve lifts at {p_txt}")
+        elif self.relief_open and not venting:
+            self.note(t, "relief-reseat", f"relief valve reseats at {p_txt}")
+        self.relief_open = venting
+        if old is None:
+            return
+        for k, sink in enumerate(self.sinks):
+            if sink.key == "relief":
+                continue
+            if old.holding == k and k in new.active:
+                self.note(t, "at-capacity",
+                          f"{sink.label} at full capacity, cannot hold {p_txt}; pressure rising")
+            if new.holding == k and old.holding != k:
+                self.note(t, "holding", f"{sink.label} holding {p_txt}")
+
+
+def simulate(scenario: Scenario, progress=None):
+    """Run a voyage and return a :class:`sim.results.VoyageResult`.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        A validated scenario (see :func:`sim.scenario.load_scenario`).
+    progress : callable, optional
+        Called as ``progress(fraction_done)`` after each segment.
+
+    Returns
+    -------
+    VoyageResult
+        Time series, events and summary for the whole ship. A run stopped by a
+        hazard (liquid-full, triple point, critical point) ends early with
+        ``status = "stopped"`` and the reason in ``message``; nothing raises.
+    """
+    from .igc import loading_limit
+    from .units import pa_to_barg
+
+    voyage = _Voyage(scenario)
+    model, table = voyage.model, voyage.table
+    tank = scenario.tank
+
+    # IGC loading limit at the start (LL = FL * rho_R / rho_L).
+    t_load = table.temperature(tank.pressure)
+    rho_load = table.at(t_load).rho_liquid
+    rho_ref = table.at(table.temperature(tank.relief_set_pressure)).rho_liquid
+    limit = loading_limit(rho_ref, rho_load)
+    if tank.fill > limit + 1e-12:
+        voyage.note(0.0, "loading-limit-exceeded",
+                    f"initial fill {100 * tank.fill:.2f} % is above the IGC loading limit "
+                    f"{100 * limit:.2f} % for relief set {pa_to_barg(tank.relief_set_pressure):.3f} barg")
+
+    y = np.concatenate([model.initial_state(tank.fill, tank.pressure), np.zeros(5)])
+    n = voyage.n_model
+    scale = np.abs(y).copy()
+    heat_scale = abs(voyage.u_value * voyage.area * 50.0 * scenario.duration) + 1.0
+    scale[n:] = [heat_scale, y[0], y[0], y[0], y[0]]
+    atol = np.maximum(scale, 1.0) * 1e-10
+
+    end = scenario.duration
+    breaks = voyage.breakpoints()
+    segments = []  # (t0, t1, OdeSolution or None, mode, caps, leg)
+    status, message = "completed", "voyage completed"
+    t = 0.0
+    mode = None
+    watch_vacuum = True
+    count = 0
+    stop = False
+    bi = 0
+    leg_started = None
+    while t < end and not stop:
+        while bi + 1 < len(breaks) and breaks[bi + 1] <= t * (1 + 1e-15) + 1e-9:
+            bi += 1
+        t_next = breaks[bi + 1]
+        leg = voyage.leg_at(t)
+        if leg is not leg_started:
+            voyage.note(t, "leg", f"leg '{leg.name}' starts: air {leg.air_temperature - 273.15:.1f} degC, "
+                                  f"sea {leg.sea_temperature - 273.15:.1f} degC")
+            leg_started = leg
+        caps = voyage.capacities(t)
+        state = voyage.evaluate(y, leg)
+        if mode is None or mode_caps != caps:
+            old = mode
+            mode = voyage.choose_mode(state, caps)
+            voyage.note_mode_change(t, old, mode, state)
+        mode_caps = caps
+        _note_plant(voyage, t)
+
+        funcs = voyage.event_functions(mode, caps, leg, watch_vacuum)
+
+        def rhs(t_, y_, mode=mode, caps=caps, leg=leg):
+            st = voyage.evaluate(y_, leg)
+            r = voyage.rates(st, mode, caps)
+            vapour, reliq = voyage.flows(r)
+            d = model.derivatives(st, vapour, reliq)
+            out = np.empty(len(y_))
+            out[:n] = d
+            out[n] = st.heat_in
+            out[n + 1] = r[voyage.index["fuel"]]
+            out[n + 2] = r[voyage.index["reliquefaction"]] if "reliquefaction" in voyage.index else 0.0
+            out[n + 3] = r[voyage.index["oxidiser"]] if "oxidiser" in voyage.index else 0.0
+            out[n + 4] = r[voyage.index["relief"]]
+            return out
+
+        sol = solve_ivp(rhs, (t, t_next), y, method="RK45", rtol=RTOL, atol=atol,
+                        max_step=MAX_STEP, dense_output=True, events=[f for f, _ in funcs])
+        if sol.status == -1:
+            status, message = "failed", f"integration failed at {t / 3600:.2f} h: {sol.message}"
+            break
+        t_end = float(sol.t[-1])
+        segments.append((t, t_end, sol.sol, mode, caps, leg))
+        y = sol.y[:, -1].copy()
+        if sol.status == 1:
+            fired = [i for i, te in enumerate(sol.t_events) if len(te)]
+            i = fired[0]
+            tag = funcs[i][1]
+            y = sol.y_events[i][-1].copy()
+            t_end = float(sol.t_events[i][-1])
+            state = voyage.evaluate(y, leg)
+            old = mode
+            kind = tag[0]
+            if kind == "liquid-full":
+                voyage.note(t_end, "liquid-full", "tank liquid-full: no vapour space left "
+                            "(hydraulic overpressure hazard); run stopped")
+                status, message, stop = "stopped", "tank became liquid-full", True
+            elif kind == "low-limit":
+                if table.temperature_min <= table.temperature_triple * (1 + 1e-6):
+                    voyage.note(t_end, "triple-point",
+                                f"pressure fell to the triple-point pressure "
+                                f"({pa_to_barg(table.pressure_triple):.2f} barg): solid cargo "
+                                "would form; run stopped")
+                    message = "pressure fell to the triple point"
+                else:
+                    voyage.note(t_end, "low-pressure-limit",
+                                f"pressure fell to {pa_to_barg(table.pressure_min):.3f} barg, "
+                                "the lowest the property tables cover; run stopped")
+                    message = "pressure fell below the modelled range"
+                status, stop = "stopped", True
+            elif kind == "high-limit":
+                voyage.note(t_end, "near-critical",
+                            "cargo within 0.4 % of its critical temperature; run stopped")
+                status, message, stop = "stopped", "cargo approached its critical point", True
+            elif kind == "vacuum":
+                voyage.note(t_end, "vacuum", f"pressure below the vacuum limit "
+                            f"{pa_to_barg(tank.vacuum_pressure):.3f} barg")
+                watch_vacuum = False
+            elif kind == "cross":
+                mode = voyage.choose_mode(state, caps)
+            elif kind == "stop-draw":
+                mode = voyage.choose_mode(state, caps, force_inactive={tag[1]})
+            elif kind == "over-capacity":
+                mode = voyage.choose_mode(state, caps, force_active={tag[1]})
+            if not stop and mode != old:
+                voyage.note_mode_change(t_end, old, mode, state)
+        if t_end <= t:
+            count += 1
+        t = t_end
+        count += 1
+        if count > MAX_SEGMENTS:
+            status, message = "failed", "pressure control did not settle (too many switches)"
+            break
+        if progress is not None:
+            progress(min(t / end, 1.0))
+
+    return build_result(voyage, segments, status, message, t)
+
+
+_OUTAGE_WORDS = {
+    "fuel": ("fuel-stop", "engines stop taking gas", "fuel-resume", "engines take gas again"),
+    "reliquefaction": ("plant-trip", "reliquefaction plant trips", "plant-restore",
+                       "reliquefaction plant back in service"),
+    "oxidiser": ("oxidiser-trip", "oxidiser out of service", "oxidiser-restore",
+                 "oxidiser back in service"),
+}
+
+
+def _note_plant(voyage: _Voyage, t: float) -> None:
+    """Record outage starts and ends falling at time t [s]."""
+    for key, (k_start, w_start, k_end, w_end) in _OUTAGE_WORDS.items():
+        for o in voyage.outages(key):
+            if abs(o.start - t) < 1e-6:
+                voyage.note(t, k_start, f"{w_start} for {o.duration / 3600:.1f} h")
+            if abs(o.end - t) < 1e-6 and o.end < voyage.scenario.duration:
+                voyage.note(t, k_end, w_end)
