@@ -276,12 +276,12 @@ class _Voyage:
     def describe(self, mode: Mode) -> str:
         """Plain words for what is controlling the pressure."""
         if mode.holding is not None:
-            sink = self.sinks[mode.holding]
-            return f"{sink.key} holding"
+            return f"{self.sinks[mode.holding].key} holding"
         if any(self.sinks[k].key == "relief" for k in mode.active):
             return "relief venting"
-        return "pressure rising" if not mode.active else "pressure moving, " + "+".join(
-            sorted(self.sinks[k].key for k in mode.active)) + " at capacity"
+        if not mode.active:
+            return "no draw"
+        return "+".join(self.sinks[k].key for k in sorted(mode.active)) + " at capacity"
 
     # -- bookkeeping of control events ---------------------------------------
     def note(self, t: float, kind: str, detail: str) -> None:
@@ -298,16 +298,24 @@ class _Voyage:
         elif self.relief_open and not venting:
             self.note(t, "relief-reseat", f"relief valve reseats at {p_txt}")
         self.relief_open = venting
-        if old is None:
-            return
+        old = old if old is not None else Mode()
         for k, sink in enumerate(self.sinks):
             if sink.key == "relief":
                 continue
-            if old.holding == k and k in new.active:
+            was = "hold" if old.holding == k else ("full" if k in old.active else "off")
+            now = "hold" if new.holding == k else ("full" if k in new.active else "off")
+            if was == now:
+                continue
+            if now == "hold":
+                self.note(t, "holding", f"{sink.label} holding {p_txt}")
+            elif now == "full" and was == "hold":
                 self.note(t, "at-capacity",
                           f"{sink.label} at full capacity, cannot hold {p_txt}; pressure rising")
-            if new.holding == k and old.holding != k:
-                self.note(t, "holding", f"{sink.label} holding {p_txt}")
+            elif now == "full":
+                self.note(t, "at-capacity",
+                          f"{sink.label} starts at {p_txt} at full capacity; pressure still rising")
+            elif t > 0.0:
+                self.note(t, "stopped-drawing", f"{sink.label} stops drawing at {p_txt}")
 
 
 def simulate(scenario: Scenario, progress=None):
