@@ -77,6 +77,7 @@ class VoyageResult:
     timeseries : pandas.DataFrame  columns of :data:`TIMESERIES_COLUMNS`
     events : list[Event]
     summary : dict  the ``summary.json`` content
+    stats : dict  solver counters: ``rhs_calls``, ``segments``
     """
 
     title: str
@@ -87,6 +88,7 @@ class VoyageResult:
     timeseries: pd.DataFrame
     events: list[Event] = field(default_factory=list)
     summary: dict = field(default_factory=dict)
+    stats: dict = field(default_factory=dict)
 
     @property
     def time_to_relief_h(self) -> float | None:

@@ -46,7 +46,7 @@ from .results import Event, build_result
 from .scenario import Scenario
 
 #: Largest integration step [s]; keeps every switch and hazard resolvable.
-MAX_STEP = 6 * 3600.0
+MAX_STEP = 12 * 3600.0
 #: Relative tolerance of the integration.
 RTOL = 1e-8
 #: Relative band around a set pressure treated as "at the set pressure".
@@ -125,6 +125,7 @@ class _Voyage:
         self._cache_state = None
         self.events: list[Event] = []
         self.relief_open = False
+        self.rhs_calls = 0
 
     # -- capacities and ambient ---------------------------------------------
     def leg_at(self, t: float):
@@ -365,6 +366,7 @@ def simulate(scenario: Scenario, progress=None):
     status, message = "completed", "voyage completed"
     t = 0.0
     mode = None
+    mode_caps = None
     watch_vacuum = True
     count = 0
     stop = False
@@ -381,16 +383,17 @@ def simulate(scenario: Scenario, progress=None):
             leg_started = leg
         caps = voyage.capacities(t)
         state = voyage.evaluate(y, leg)
+        _note_plant(voyage, t)
         if mode is None or mode_caps != caps:
             old = mode
             mode = voyage.choose_mode(state, caps)
             voyage.note_mode_change(t, old, mode, state)
         mode_caps = caps
-        _note_plant(voyage, t)
 
         funcs = voyage.event_functions(mode, caps, leg, watch_vacuum)
 
         def rhs(t_, y_, mode=mode, caps=caps, leg=leg):
+            voyage.rhs_calls += 1
             st = voyage.evaluate(y_, leg)
             r = voyage.rates(st, mode, caps)
             vapour, reliq = voyage.flows(r)
@@ -464,7 +467,9 @@ def simulate(scenario: Scenario, progress=None):
         if progress is not None:
             progress(min(t / end, 1.0))
 
-    return build_result(voyage, segments, status, message, t)
+    result = build_result(voyage, segments, status, message, t)
+    result.stats = {"rhs_calls": voyage.rhs_calls, "segments": len(segments)}
+    return result
 
 
 _OUTAGE_WORDS = {
