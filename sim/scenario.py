@@ -200,6 +200,9 @@ class Scenario:
         The engines stop drawing tank vapour below this pressure [Pa].
     fuel_outages : tuple[Outage, ...]
         Windows in which the engines take no gas (e.g. running on oil).
+    mixing_times : tuple[float, ...]
+        Times the liquid is mixed (heavy weather, cargo pump) [s]; acts on
+        tank models with a stratified liquid.
     raw : dict
         The scenario as written (trade units), for saving it back.
     """
@@ -214,6 +217,7 @@ class Scenario:
     oxidiser: Oxidiser | None
     fuel_floor_pressure: float
     fuel_outages: tuple[Outage, ...] = ()
+    mixing_times: tuple[float, ...] = ()
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
@@ -409,6 +413,11 @@ SCHEMA: dict[str, dict[str, KeySpec]] = {
                       "tank vapour (default: tank.pressure_barg)"),
     ),
     "fuel.outage": _outage_specs("gas burning"),
+    "mixing": _specs(
+        KeySpec("day", "time the liquid is mixed (heavy weather, cargo pump started), days "
+                "from voyage start; acts on tank models with a stratified liquid",
+                low=0.0, low_included=True, unit="days", required=True),
+    ),
 }
 
 #: Tables inside tables: where they live, how they are written, what they hold.
@@ -421,6 +430,7 @@ _SUBTABLES: dict[str, dict[str, tuple[str, str]]] = {
         "reliquefaction": ("table", "reliquefaction plant"),
         "oxidiser": ("table", "thermal oxidiser / gas combustion unit"),
         "fuel": ("table", "fuel gas settings"),
+        "mixing": ("array", "times the liquid is mixed"),
     },
     "reliquefaction": {"outage": ("array", "plant outages")},
     "oxidiser": {"outage": ("array", "oxidiser outages")},
@@ -429,7 +439,7 @@ _SUBTABLES: dict[str, dict[str, tuple[str, str]]] = {
 
 #: Canonical order of the top-level keys when a scenario is written out.
 _TOP_ORDER = ("title", "model", "cargo", "tank", "insulation", "leg", "reliquefaction",
-              "oxidiser", "fuel")
+              "oxidiser", "fuel", "mixing")
 
 
 # ---------------------------------------------------------------------------
@@ -558,7 +568,7 @@ def _or(items) -> str:
 def _table_label(table: str) -> str:
     if table == "":
         return "the top level"
-    if table == "leg" or table.endswith(".outage"):
+    if table in ("leg", "mixing") or table.endswith(".outage"):
         return f"[[{table}]]"
     return f"[{table}]"
 
@@ -830,6 +840,7 @@ def parse_scenario(data: dict, source: str = "") -> Scenario:
     oxidiser = _parse_oxidiser(check, data, table, relief, voyage_days)
     fuel_floor, fuel_outages = _parse_fuel(check, data, relief,
                                            tank_values.get("pressure_barg"), voyage_days)
+    mixing_times = _parse_mixing(check, data, voyage_days)
 
     if check.problems:
         raise ScenarioError(check.problems, source)
@@ -844,6 +855,7 @@ def parse_scenario(data: dict, source: str = "") -> Scenario:
         oxidiser=oxidiser,
         fuel_floor_pressure=fuel_floor,
         fuel_outages=fuel_outages,
+        mixing_times=mixing_times,
         raw=copy.deepcopy(data),
     )
 
@@ -1122,6 +1134,29 @@ def _parse_fuel(check: _Checker, data: dict, relief: float | None, pressure: flo
                          "the engines must be able to draw vapour below the relief valve"):
         floor = None
     return (None if floor is None else barg_to_pa(floor)), outages
+
+
+def _parse_mixing(check: _Checker, data: dict, voyage_days: float | None) -> tuple[float, ...]:
+    """``[[mixing]]`` entries -> sorted times [s] (empty if absent or bad)."""
+    items = check.array(data, "mixing", "")
+    if items is None:
+        return ()
+    times = []
+    for number, item in enumerate(items, start=1):
+        path = f"mixing[{number}]"
+        if not isinstance(item, dict):
+            check.add(f"{path} = {_show(item)}: must be a table ([[mixing]] with day), "
+                      f"not {_kind(item)}")
+            continue
+        check.unknown_keys(item, path, "mixing")
+        day = check.number(item, path, SCHEMA["mixing"]["day"])
+        if day is not None and voyage_days is not None and day >= voyage_days:
+            check.add(f"{path}.day = {_show(item['day'])} is at or after the voyage end "
+                      f"({_num(round(voyage_days, 6))} days)")
+            continue
+        if day is not None:
+            times.append(day * SECONDS_PER_DAY)
+    return tuple(sorted(times))
 
 
 # ---------------------------------------------------------------------------
