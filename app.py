@@ -1,0 +1,24 @@
+"""Voyage boil-off and pressure-rise simulator: the browser app.
+
+Run with ``streamlit run app.py``. Pages live in ``ui/pages/``; this file only
+sets up the page, the navigation and the caution every page shows.
+"""
+
+import streamlit as st
+
+from ui import widgets
+
+st.set_page_config(page_title="Boil-off voyage simulator", page_icon=":material/propane_tank:",
+                   layout="wide")
+
+PAGES = [
+    st.Page("ui/pages/setup.py", title="Set-up", icon=":material/tune:", default=True),
+    st.Page("ui/pages/results.py", title="Results", icon=":material/monitoring:"),
+    st.Page("ui/pages/whatif.py", title="What-if", icon=":material/crisis_alert:"),
+    st.Page("ui/pages/compare.py", title="Compare", icon=":material/stacked_line_chart:"),
+    st.Page("ui/pages/methods.py", title="Methods", icon=":material/menu_book:"),
+]
+
+page = st.navigation(PAGES, position="top")
+widgets.caution()
+page.run()

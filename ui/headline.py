@@ -1,0 +1,161 @@
+"""Headline figures of a run and the side-by-side comparison table. Pure, no Streamlit.
+
+Everything here reads the engine's own ``VoyageResult.summary`` (whole ship,
+trade units); nothing is recomputed.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import pandas as pd
+
+
+@dataclass(frozen=True)
+class Headline:
+    """One headline figure: short label, value with unit, a line of context, help."""
+
+    key: str
+    label: str
+    value: str
+    note: str
+    help: str
+
+
+def _num(x) -> float | None:
+    if x is None:
+        return None
+    x = float(x)
+    return None if math.isnan(x) else x
+
+
+def relief_text(summary: dict) -> tuple[str, str]:
+    """(value, note) for the relief valve: first lift time, or holds with the margin left."""
+    hours = _num(summary.get("time_to_relief_h"))
+    if hours is None:
+        margin = _num(summary.get("margin_to_relief_bar")) or 0.0
+        whole = summary.get("status") == "completed"
+        value = "Holds all voyage" if whole else "Does not lift"
+        return value, f"{margin:.3f} bar margin left at the peak"
+    return f"Lifts after {hours:.1f} h", f"day {hours / 24.0:.2f} of the voyage"
+
+
+def headlines(summary: dict) -> list[Headline]:
+    """The figures an engineer reads first, in reading order."""
+    stopped = summary.get("status") != "completed"
+    end = "at stop" if stopped else "on arrival"
+    relief_value, relief_note = relief_text(summary)
+    loss_t = _num(summary.get("cargo_loss_t")) or 0.0
+    energy = _num(summary.get("reliquefaction_energy_kwh")) or 0.0
+    reliq_t = _num(summary.get("reliquefied_t")) or 0.0
+    return [
+        Headline("relief", "Relief valve", relief_value, relief_note,
+                 "First time the tank pressure reaches the relief valve set pressure (MARVS)."),
+        Headline("cargo_loss", "Cargo lost", f"{loss_t:,.1f} t",
+                 f"{summary.get('cargo_loss_pct', 0.0):.3f} % of "
+                 f"{summary.get('initial_cargo_t', 0.0):,.0f} t loaded",
+                 "Burned as fuel, oxidised and vented; reliquefied vapour is not lost."),
+        Headline("bor", "Mean BOR", f"{summary.get('mean_bor_pct_day', 0.0):.4f} %/day",
+                 f"{summary.get('boil_off_t', 0.0):,.1f} t boiled off in "
+                 f"{summary.get('simulated_days', 0.0):.1f} days",
+                 "All vapour drawn off (every sink) over the cargo loaded, per day."),
+        Headline("pressure", f"Pressure {end}",
+                 f"{summary.get('final_pressure_barg', 0.0):.3f} barg",
+                 f"peak {summary.get('max_pressure_barg', 0.0):.3f} barg",
+                 "Tank pressure at the end of the run."),
+        Headline("liquid_temp", f"Liquid {end}",
+                 f"{summary.get('final_liquid_temp_c', 0.0):.2f} °C",
+                 f"departure {summary.get('initial_liquid_temp_c', 0.0):.2f} °C",
+                 "Cargo liquid temperature at the end of the run."),
+        Headline("reliquefaction_energy", "Reliquefaction energy",
+                 f"{energy / 1000.0:,.2f} MWh",
+                 f"{reliq_t:,.1f} t reliquefied" if reliq_t > 0 else "plant not used",
+                 "Electrical energy of the reliquefaction plant over the run."),
+    ]
+
+
+#: Rows of the comparison table: (row label with unit, summary key, number format).
+COMPARE_ROWS: tuple[tuple[str, str, str], ...] = (
+    ("Relief valve first lifts (h)", "time_to_relief_h", "{:.1f}"),
+    ("Peak pressure (barg)", "max_pressure_barg", "{:.3f}"),
+    ("Margin to relief at peak (bar)", "margin_to_relief_bar", "{:.3f}"),
+    ("Final pressure (barg)", "final_pressure_barg", "{:.3f}"),
+    ("Final liquid temperature (°C)", "final_liquid_temp_c", "{:.2f}"),
+    ("Final fill (%)", "final_fill_pct", "{:.2f}"),
+    ("Cargo loaded (t)", "initial_cargo_t", "{:,.0f}"),
+    ("Cargo lost (t)", "cargo_loss_t", "{:,.1f}"),
+    ("Cargo lost (%)", "cargo_loss_pct", "{:.3f}"),
+    ("Burned as fuel (t)", "fuel_t", "{:,.1f}"),
+    ("Reliquefied (t)", "reliquefied_t", "{:,.1f}"),
+    ("Oxidised (t)", "oxidised_t", "{:,.1f}"),
+    ("Vented (t)", "vented_t", "{:,.1f}"),
+    ("Mean BOR (%/day)", "mean_bor_pct_day", "{:.4f}"),
+    ("Reliquefaction energy (kWh)", "reliquefaction_energy_kwh", "{:,.0f}"),
+    ("Days simulated", "simulated_days", "{:.2f}"),
+)
+
+
+def compare_frame(runs: Sequence[tuple[str, dict]]) -> pd.DataFrame:
+    """Headline numbers side by side: one row per figure, one column per run.
+
+    Values are the summaries' own numbers (float); a relief valve that never
+    lifts is NaN.
+    """
+    data = {}
+    for label, summary in runs:
+        data[label] = [_num(summary.get(key)) for _, key, _ in COMPARE_ROWS]
+    frame = pd.DataFrame(data, index=[row for row, _, _ in COMPARE_ROWS], dtype=float)
+    frame.index.name = "Figure"
+    return frame
+
+
+def compare_display(frame: pd.DataFrame) -> pd.DataFrame:
+    """The comparison table as text, each row in its own format; no relief lift reads so."""
+    formats = {row: fmt for row, _, fmt in COMPARE_ROWS}
+    out = frame.astype(object).copy()
+    for row in frame.index:
+        for col in frame.columns:
+            x = frame.loc[row, col]
+            if pd.isna(x):
+                out.loc[row, col] = "does not lift" if row.startswith("Relief") else "–"
+            else:
+                out.loc[row, col] = formats.get(row, "{:.4g}").format(x)
+    return out.astype(str)
+
+
+#: Plain words for the engine's event kinds (the events table).
+EVENT_WORDS = {
+    "leg": "Leg starts",
+    "relief-lift": "Relief valve lifts",
+    "relief-reseat": "Relief valve reseats",
+    "plant-trip": "Reliquefaction plant trips",
+    "plant-restore": "Reliquefaction plant back",
+    "fuel-stop": "Engines stop taking gas",
+    "fuel-resume": "Engines take gas again",
+    "oxidiser-trip": "Oxidiser out of service",
+    "oxidiser-restore": "Oxidiser back",
+    "holding": "Pressure held",
+    "at-capacity": "At full capacity",
+    "stopped-drawing": "Stops drawing vapour",
+    "liquid-full": "Tank liquid-full",
+    "vacuum": "Below vacuum level",
+    "triple-point": "Triple point reached",
+    "low-pressure-limit": "Below modelled range",
+    "near-critical": "Near critical point",
+    "loading-limit-exceeded": "Above IGC loading limit",
+}
+
+
+def events_table(events: pd.DataFrame) -> pd.DataFrame:
+    """The engine's events frame (time_h, kind, detail) with days and plain words added."""
+    out = pd.DataFrame({
+        "Day": events["time_h"].astype(float) / 24.0,
+        "Hour": events["time_h"].astype(float),
+        "Event": [EVENT_WORDS.get(k, str(k).replace("-", " ").capitalize())
+                  for k in events["kind"]],
+        "Detail": events["detail"].astype(str),
+        "kind": events["kind"].astype(str),
+    })
+    return out.reset_index(drop=True)

@@ -1,0 +1,110 @@
+"""Methods page: what the model assumes, its equations in words, its limits, references."""
+
+from __future__ import annotations
+
+import streamlit as st
+
+from sim.models import MODEL_DESCRIPTIONS
+
+TEXT = r"""
+### Tank model: equilibrium
+
+Every cargo tank is rigid and holds liquid and vapour **saturated at one
+temperature**, the boiling point at the tank pressure. The state of one tank is
+its cargo mass $M$ and internal energy $U$; volume $V$ is fixed, so pressure,
+temperature, fill and the split between liquid and vapour all follow from $M/V$
+and $U/M$ through the cargo's saturation properties. Identical tanks behave the
+same, so one is computed and the results are multiplied by the number of tanks.
+
+**Mass balance.** Cargo leaves the tank only as vapour taken by the engines, the
+oxidiser or the relief valves: $\dot M = -\dot m_{out}$. Vapour drawn by the
+reliquefaction plant comes back as liquid and stays on board.
+
+**Energy balance.** Heat flowing in raises the energy; vapour leaving carries
+away its enthalpy; reliquefied vapour returns as saturated liquid, taking away
+its latent heat:
+
+$$\dot U = \dot Q - \dot m_{out}\,h_v - \dot m_{rl}\,(h_v - h_l)$$
+
+**Boil-off at constant pressure.** Holding the pressure with vapour leaving the
+tank takes
+
+$$\dot m = \frac{\dot Q}{h_{fg}}\left(1 - \frac{\rho_v}{\rho_l}\right)$$
+
+The heat boils liquid ($\dot Q/h_{fg}$), and part of the new vapour stays to
+fill the space the evaporated liquid left.
+
+### Heat in
+
+$$\dot Q = U A\,[\,f_{air}(T_{air} - T) + (1 - f_{air})(T_{sea} - T)\,]$$
+
+One U-value over the whole tank surface $A$; a share $f_{air}$ of the surface sees
+the air temperature of the current leg, the rest the sea temperature; $T$ is the
+cargo temperature.
+
+**Rated BOR.** When a rated boil-off rate is given instead of a U-value, $U$ is
+chosen so that a tank held at its departure pressure, at the rating fill and the
+rating air and sea temperatures (45 °C and 32 °C unless given), boils off at
+the rated rate by the formula above.
+
+### Pressure control
+
+Each way of taking vapour off starts at its own set pressure and has a capacity;
+they act in order of set pressure: **engines** (fuel gas demand of the leg,
+above the fuel floor pressure) → **reliquefaction plant** (holds its hold
+pressure, up to its capacity) → **oxidiser** (starts at its set pressure) →
+**relief valves** (lift at MARVS, unlimited). At any moment one of them may be
+*holding* the pressure exactly; those below it run at capacity. A plant in an
+outage window takes nothing, and the pressure rises until the next one in line
+acts. Every switch is found as the moment a continuous quantity (pressure minus a
+set pressure, or a holding rate reaching zero or capacity) crosses zero, and
+logged as an event.
+
+### Loading limit
+
+The IGC loading limit is $LL = FL \cdot \rho_R / \rho_L$: the filling limit
+$FL$ (98 %) times the liquid density at the reference temperature (where the
+cargo's vapour pressure equals the relief set pressure) over the density at
+loading. A fill above it is logged at the start of the run.
+
+### Limits
+
+* The equilibrium model **under-predicts the early pressure rise when the liquid
+  stratifies**: a warm layer at the surface sets the pressure long before the
+  bulk warms. Treat its time to relief-valve lift as an upper estimate for a
+  tank left undisturbed.
+* No sloshing, no spray, no cool-down or loading operations; the tank walls and
+  insulation store no heat.
+* Identical tanks share the plant equally; one tank behaving differently is not
+  represented.
+* Pure cargoes only (methane stands in for LNG, propane for LPG); no nitrogen
+  or light ends in the vapour.
+* The run stops when a tank becomes liquid-full, the pressure reaches the
+  cargo's triple point, or the cargo approaches its critical point.
+
+### References
+
+* I. H. Bell, J. Wronski, S. Quoilin, V. Lemort, "Pure and pseudo-pure fluid
+  thermophysical property evaluation and the open-source thermophysical property
+  library CoolProp", *Ind. Eng. Chem. Res.* 53 (2014) 2498–2508,
+  doi:10.1021/ie4033999. All cargo properties come from CoolProp's reference
+  equations of state.
+* IMO, *International Code for the Construction and Equipment of Ships Carrying
+  Liquefied Gases in Bulk* (IGC Code), 2016 edition: chapter 7 (cargo pressure
+  and temperature control) and chapter 15 (filling limits). Recalled, not
+  quoted; check the edition that applies to your ship.
+"""
+
+
+def render() -> None:
+    st.title("Methods")
+    st.caption("How the numbers are made, and where they stop being trustworthy.")
+    models = ", ".join(f"**{name}** ({text[0].lower() + text[1:].rstrip('.')})"
+                       for name, text in MODEL_DESCRIPTIONS.items())
+    text, _ = st.columns([5, 2])
+    text.markdown(f"Tank models available: {models}.")
+    text.markdown(TEXT)
+
+
+if __name__ == "__main__":
+    render()
