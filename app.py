@@ -16,6 +16,8 @@ PAGES = [
     st.Page("ui/pages/results.py", title="Results", icon=":material/monitoring:"),
     st.Page("ui/pages/whatif.py", title="What-if", icon=":material/crisis_alert:"),
     st.Page("ui/pages/compare.py", title="Compare", icon=":material/stacked_line_chart:"),
+    st.Page("ui/pages/sizing.py", title="Sizing", icon=":material/calculate:"),
+    st.Page("ui/pages/sweep.py", title="Sweeps", icon=":material/grid_on:"),
     st.Page("ui/pages/methods.py", title="Methods", icon=":material/menu_book:"),
 ]
 

@@ -1,4 +1,4 @@
-"""Command line: ``python -m sim cargoes | validate | run``.
+"""Command line: ``python -m sim cargoes | validate | run | size | sweep``.
 
 Exit codes: 0 success (a run stopped by a hazard such as liquid-full is still
 a result), 2 bad input (the message names the key, value and what is
@@ -106,6 +106,167 @@ def cmd_run(args) -> int:
     return EXIT_FAILED if result.status == "failed" else EXIT_OK
 
 
+def _problems(head: str, problems: list[str]) -> None:
+    """Print input problems to stderr, one per line."""
+    if len(problems) == 1:
+        print(f"error: {head}{problems[0]}", file=sys.stderr)
+        return
+    print(f"error: {head}{len(problems)} problems:", file=sys.stderr)
+    for p in problems:
+        print(f"  - {p}", file=sys.stderr)
+
+
+def cmd_size(args) -> int:
+    """Size a reliquefaction plant; write sizing.json, holding-time and loading-limit tables."""
+    scenario = _load(args.scenario)
+    if scenario is None:
+        return EXIT_BAD_INPUT
+    from .scenario import ScenarioError
+    from .sizing import SizingError, output_files, size_plant, summary_lines
+    from .sweep import write_files
+
+    try:
+        sizing = size_plant(
+            scenario.raw, design_air_c=args.design_air_c, design_sea_c=args.design_sea_c,
+            hold_barg=args.hold_barg, fuel_credit=args.fuel_credit, margin_pct=args.margin_pct,
+            unit_kg_h=args.unit_kg_h, spare_units=args.spare_units,
+            specific_power_kwh_kg=args.specific_power_kwh_kg, horizon_days=args.horizon_days,
+            voyage_ambient=args.voyage_ambient, curves=not args.no_curves)
+    except (SizingError, ScenarioError) as err:
+        _problems("", err.problems)
+        return EXIT_BAD_INPUT
+    try:
+        written = write_files(args.out, output_files(sizing))
+    except OSError as err:
+        print(f"error: cannot write to --out {args.out}: {err}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    for line in summary_lines(sizing.summary):
+        print(line)
+    print("  wrote " + ", ".join(str(p) for p in written))
+    print(f"  {CAUTION}")
+    return EXIT_OK
+
+
+def _flat(groups) -> list[str]:
+    return [item for group in (groups or []) for item in group]
+
+
+def cmd_sweep(args) -> int:
+    """Run a scenario over a grid of values or a Monte Carlo sample; write sweep.csv/.json/.html."""
+    scenario = _load(args.scenario)
+    if scenario is None:
+        return EXIT_BAD_INPUT
+    from .sweep import (
+        ClusterError,
+        SweepError,
+        grid_cases,
+        output_files,
+        parse_sample,
+        parse_vary,
+        percentiles,
+        run_sweep,
+        run_uncertainty,
+        write_files,
+    )
+
+    data = scenario.raw
+    varies, samples = _flat(args.vary), _flat(args.sample)
+    problems = []
+    if varies and samples:
+        problems.append("give either --vary (a grid) or --sample (Monte Carlo), not both")
+    if not varies and not samples:
+        problems.append("nothing to do: give --vary KEY=VALUES (e.g. tank.fill_pct=80:98:2) or "
+                        "--sample KEY=KIND:PARAMS (e.g. insulation.rated_bor_pct_day="
+                        "normal:0.1:0.01)")
+    if not samples and (args.cases is not None or args.seed is not None):
+        problems.append("--cases and --seed go with --sample (Monte Carlo)")
+    if args.workers is not None and args.workers < 1:
+        problems.append(f"--workers {args.workers}: must be 1 or more")
+    variations, distributions = [], []
+    for text in varies:
+        try:
+            variations.append(parse_vary(text, data))
+        except SweepError as err:
+            problems.extend(err.problems)
+    for text in samples:
+        try:
+            distributions.append(parse_sample(text, data))
+        except SweepError as err:
+            problems.extend(err.problems)
+    cases = args.cases if args.cases is not None else 200
+    if samples and not 1 <= cases <= 200_000:
+        problems.append(f"--cases {cases}: must be a whole number from 1 to 200000")
+    if not problems and variations:
+        try:
+            total = len(grid_cases(variations))
+        except SweepError as err:
+            problems.extend(err.problems)
+    if problems:
+        _problems("", problems)
+        return EXIT_BAD_INPUT
+    total = cases if distributions else total
+
+    import tqdm
+
+    tqdm.tqdm.monitor_interval = 0  # no monitor thread alive when worker processes fork
+    bar = tqdm.tqdm(total=total, unit="case", file=sys.stderr, dynamic_ncols=True,
+                    disable=True if args.no_progress else None, desc="sweep")
+    try:
+        if distributions:
+            result = run_uncertainty(data, distributions, cases, seed=args.seed,
+                                     workers=args.workers, scheduler=args.scheduler,
+                                     progress=bar.update)
+        else:
+            result = run_sweep(data, variations, workers=args.workers, scheduler=args.scheduler,
+                               progress=bar.update)
+    except SweepError as err:
+        bar.close()
+        _problems("", err.problems)
+        return EXIT_BAD_INPUT
+    except ClusterError as err:
+        bar.close()
+        print(f"error: {err}", file=sys.stderr)
+        return EXIT_FAILED
+    bar.close()
+
+    invalid = result.invalid
+    info = result.info
+    where = {"serial": "in this process", "processes": f"on {info.workers} local processes",
+             "dask": f"on the Dask cluster at {info.address} ({info.workers} threads)"}
+    print(f"{result.title}: {len(result.rows)} cases, {len(invalid)} invalid, "
+          f"{info.seconds:.1f} s {where[info.executor]}")
+    for i in invalid[:5]:
+        edits = ", ".join(f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
+                          for k, v in result.cases[i])
+        print(f"  invalid case {i} ({edits}): {result.rows[i]['error']}")
+    if len(invalid) > 5:
+        print(f"  ... and {len(invalid) - 5} more invalid cases (see the error column)")
+    if args.scheduler and args.workers is not None:
+        print("  note: --workers is ignored with --scheduler (the cluster's workers run the cases)")
+    for warning in info.warnings:
+        print(f"  warning: {warning}")
+    if len(invalid) == len(result.rows):
+        print("error: every case is invalid; nothing written", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    if distributions:
+        print(f"  seed {result.seed}")
+        for key, stats in percentiles(result).items():
+            cells = ", ".join(f"{n.upper()} {_fmt(stats[n], 1)}" for n in ("p10", "p50", "p90"))
+            extra = ""
+            if key == "time_to_relief_h":
+                extra = (f" (relief lifts in {stats['lifted_cases']} of {stats['valid_cases']} "
+                         "cases; '-' = beyond the voyage)")
+            print(f"  {key}: {cells}{extra}")
+    try:
+        written = write_files(args.out, output_files(result, str(args.scenario)))
+    except OSError as err:
+        print(f"error: cannot write to --out {args.out}: {err}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    print("  wrote " + ", ".join(str(p) for p in written))
+    print(f"  {CAUTION}")
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="python -m sim",
@@ -123,6 +284,66 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("scenario", help="scenario TOML file")
     p.add_argument("--out", required=True, help="output directory (created if missing)")
     p.set_defaults(func=cmd_run)
+
+    p = sub.add_parser(
+        "size", help="size a reliquefaction plant; holding times; IGC loading-limit table",
+        description="Smallest reliquefaction plant that holds the hold pressure at the design "
+                    "ambient indefinitely and through the scenario's plant outages; holding "
+                    "time with all pressure control lost; IGC loading limit against loading "
+                    "temperature. Writes sizing.json, holding-time.csv, loading-limit.csv and "
+                    "sizing.html into --out.",
+        epilog=CAUTION)
+    p.add_argument("scenario", help="scenario TOML file")
+    p.add_argument("--out", required=True, help="output directory (created if missing)")
+    p.add_argument("--design-air-c", type=float, default=45.0, metavar="DEGC",
+                   help="design air temperature (default 45, the IGC upper design ambient)")
+    p.add_argument("--design-sea-c", type=float, default=32.0, metavar="DEGC",
+                   help="design sea temperature (default 32, the IGC upper design ambient)")
+    p.add_argument("--hold-barg", type=float, metavar="BARG",
+                   help="pressure the plant holds (default: reliquefaction.hold_barg, or the "
+                        "initial pressure if the scenario has no plant)")
+    p.add_argument("--fuel-credit", action="store_true",
+                   help="credit the lowest leg fuel demand (default: no credit, conservative)")
+    p.add_argument("--margin-pct", type=float, default=0.0, metavar="PCT",
+                   help="design margin on the required capacity (default 0)")
+    p.add_argument("--unit-kg-h", type=float, metavar="KG_H",
+                   help="capacity of one plant unit: report the units needed")
+    p.add_argument("--spare-units", type=int, default=1, metavar="N",
+                   help="stand-by units on top of those needed (default 1: N+1)")
+    p.add_argument("--specific-power-kwh-kg", type=float, metavar="KWH_KG",
+                   help="electrical energy per kg condensed (default: the scenario's)")
+    p.add_argument("--horizon-days", type=float, default=365.0, metavar="DAYS",
+                   help="longest holding-time run (default 365)")
+    p.add_argument("--voyage-ambient", action="store_true",
+                   help="run the outage voyage at each leg's own ambient, not the design ambient")
+    p.add_argument("--no-curves", action="store_true", help="skip the holding-time curves")
+    p.set_defaults(func=cmd_size)
+
+    p = sub.add_parser(
+        "sweep", help="run a scenario over a grid of values or a Monte Carlo sample",
+        description="Vary scenario keys over lists or ranges (full factorial), or draw "
+                    "uncertain keys from distributions; one summary row per case in "
+                    "sweep.csv and sweep.json, with a chart (sweep.html or uncertainty.html).",
+        epilog="KEY is a dotted scenario key: tank.fill_pct, insulation.u_w_m2k, leg.0.air_c "
+               "(first leg), leg.*.air_c (every leg). VALUES: 0.02,0.03,0.04 or a range "
+               "start:stop:step (80:98:2; the stop is included when it lands on the grid). "
+               "Distributions: normal:MEAN:SD, uniform:LOW:HIGH, triangular:LOW:MODE:HIGH. "
+               + CAUTION)
+    p.add_argument("scenario", help="scenario TOML file")
+    p.add_argument("--vary", action="append", nargs="+", metavar="KEY=VALUES",
+                   help="a key and its values; repeat for a full-factorial grid")
+    p.add_argument("--sample", action="append", nargs="+", metavar="KEY=DIST",
+                   help="an uncertain key and its distribution (Monte Carlo)")
+    p.add_argument("--cases", type=int, metavar="N", help="Monte Carlo cases (default 200)")
+    p.add_argument("--seed", type=int, metavar="S",
+                   help="Monte Carlo seed (default: a fresh one, recorded in sweep.json)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="run on a Dask distributed cluster, e.g. tcp://10.0.0.5:8786")
+    p.add_argument("--workers", type=int, metavar="N",
+                   help="local worker processes (default: all cores; 1 runs in this process)")
+    p.add_argument("--no-progress", action="store_true", help="no progress bar")
+    p.add_argument("--out", required=True, help="output directory (created if missing)")
+    p.set_defaults(func=cmd_sweep)
     return parser
 
 
