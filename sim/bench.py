@@ -26,8 +26,17 @@ def _closed_tank(days=30.0):
 
     tank = TankSpec(Sphere(15.0), 1, 0.9, barg_to_pa(0.1), barg_to_pa(2.0), barg_to_pa(-0.3))
     legs = (Leg("bench", days * SECONDS_PER_DAY, c_to_k(35.0), c_to_k(28.0), 0.0),)
-    return Scenario("bench: closed propane sphere", "equilibrium", "propane", tank,
-                    Insulation(0.6, 0.8), legs, None, None, barg_to_pa(0.1))
+    return Scenario(
+        "bench: closed propane sphere",
+        "equilibrium",
+        "propane",
+        tank,
+        Insulation(0.6, 0.8),
+        legs,
+        None,
+        None,
+        barg_to_pa(0.1),
+    )
 
 
 class DirectSaturation:
@@ -57,8 +66,10 @@ class DirectSaturation:
         a.update(cp.QT_INPUTS, 1.0, temperature)
         rv, hv, uv = a.rhomass(), a.hmass(), a.umass()
         drv, dhv, duv = d(cp.iDmass, cp.iT), d(cp.iHmass, cp.iT), d(cp.iUmass, cp.iT)
-        return ([math.log(p), math.log(rv), rl, hl, hv, ul, uv],
-                [dp / p, drv / rv, drl, dhl, dhv, dul, duv])
+        return (
+            [math.log(p), math.log(rv), rl, hl, hv, ul, uv],
+            [dp / p, drv / rv, drl, dhl, dhv, dul, duv],
+        )
 
     def raw_many(self, temperature):
         import numpy as np
@@ -144,15 +155,21 @@ def main(repeats: int = 7) -> int:
     print(f"  python {sys.version.split()[0]}")
     print(f"  import CoolProp               {t_import:8.3f} s")
     print(f"  saturation table build        {t_table * 1e3:8.1f} ms")
-    print(f"  voyage run (median of {repeats})     {run * 1e3:8.1f} ms   "
-          f"(min {min(times) * 1e3:.1f}, max {max(times) * 1e3:.1f})")
+    print(
+        f"  voyage run (median of {repeats})     {run * 1e3:8.1f} ms   "
+        f"(min {min(times) * 1e3:.1f}, max {max(times) * 1e3:.1f})"
+    )
     print(f"  RHS evaluations               {result.stats['rhs_calls']:8d}")
     print(f"  time to relief                {engine_relief:10.3f} h (tables)")
-    for label, secs, res in (("direct CoolProp, QT flashes", t_qt, direct_qt),
-                             ("direct CoolProp, DmassUmass flash", t_du, direct_du)):
+    for label, secs, res in (
+        ("direct CoolProp, QT flashes", t_qt, direct_qt),
+        ("direct CoolProp, DmassUmass flash", t_du, direct_du),
+    ):
         diff = 100 * abs(res.time_to_relief_h / engine_relief - 1)
-        print(f"  {label:33s} {secs * 1e3:8.1f} ms   speed-up of tables {secs / run:5.1f} x; "
-              f"time to relief differs by {diff:.2e} %")
+        print(
+            f"  {label:33s} {secs * 1e3:8.1f} ms   speed-up of tables {secs / run:5.1f} x; "
+            f"time to relief differs by {diff:.2e} %"
+        )
     return 0
 
 

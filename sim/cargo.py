@@ -73,12 +73,22 @@ _ENTRIES = [
     CargoInfo("isobutane", "IsoButane", "Isobutane", "C4H10"),
     CargoInfo("1-butene", "1-Butene", "1-Butene", "C4H8"),
     CargoInfo("ammonia", "Ammonia", "Ammonia", "NH3"),
-    CargoInfo("carbon-dioxide", "CarbonDioxide", "Carbon dioxide", "CO2",
-              "liquid only above its triple point (5.18 bar abs)"),
+    CargoInfo(
+        "carbon-dioxide",
+        "CarbonDioxide",
+        "Carbon dioxide",
+        "CO2",
+        "liquid only above its triple point (5.18 bar abs)",
+    ),
     CargoInfo("nitrogen", "Nitrogen", "Nitrogen", "N2"),
     CargoInfo("hydrogen", "Hydrogen", "Hydrogen (normal)", "H2", "normal hydrogen, 75 % ortho"),
-    CargoInfo("parahydrogen", "ParaHydrogen", "Parahydrogen", "H2",
-              "equilibrium hydrogen at cargo temperatures is nearly all para"),
+    CargoInfo(
+        "parahydrogen",
+        "ParaHydrogen",
+        "Parahydrogen",
+        "H2",
+        "equilibrium hydrogen at cargo temperatures is nearly all para",
+    ),
 ]
 
 #: The catalogue, by scenario-file name.
@@ -94,7 +104,7 @@ def cargo_info(name: str) -> CargoInfo:
         raise ValueError(f"unknown cargo {name!r}; allowed: {allowed}") from None
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def abstract_state(coolprop_name: str):
     """A cached CoolProp ``AbstractState`` (HEOS) for one fluid.
 
@@ -224,8 +234,11 @@ class SaturationTable:
     def raw_many(self, temperature: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Vectorised :meth:`raw`: arrays of shape (columns, n) for n temperatures."""
         temperature = np.asarray(temperature, dtype=float)
-        i = np.clip(np.searchsorted(self._node_array, temperature, side="right") - 1,
-                    0, len(self._nodes) - 2)
+        i = np.clip(
+            np.searchsorted(self._node_array, temperature, side="right") - 1,
+            0,
+            len(self._nodes) - 2,
+        )
         dt = (temperature - self._node_array[i])[:, None]
         c = self._coef_array[i]
         value = ((c[:, 0] * dt + c[:, 1]) * dt + c[:, 2]) * dt + c[:, 3]
@@ -313,7 +326,7 @@ def coolprop_saturation(name: str, temperature: float) -> SaturationPoint:
     return SaturationPoint(temperature, math.exp(row[0]), row[2], math.exp(row[1]), *row[3:])
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def saturation_table(name: str) -> SaturationTable:
     """The (cached) saturation table of a catalogue cargo."""
     return SaturationTable(cargo_info(name))

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import argparse
 import sys
-from pathlib import Path
 
 from . import CAUTION, __version__
 
@@ -28,17 +27,26 @@ def cmd_cargoes(args) -> int:
     from .units import T_ZERO_C
 
     rows = catalogue_rows()
-    header = (f"{'name':15s} {'formula':7s} {'NBP degC':>9s} {'Tc degC':>8s} {'pc bar':>7s} "
-              f"{'Ttriple degC':>12s} {'ptriple bar':>11s} {'rho_l kg/m3':>11s}  note")
+    header = (
+        f"{'name':15s} {'formula':7s} {'NBP degC':>9s} {'Tc degC':>8s} {'pc bar':>7s} "
+        f"{'Ttriple degC':>12s} {'ptriple bar':>11s} {'rho_l kg/m3':>11s}  note"
+    )
     print(header)
     print("-" * len(header))
     for r in rows:
         nbp = r["normal_boiling_point"]
         nbp_txt = f"{nbp - T_ZERO_C:9.2f}" if nbp is not None else f"{'sublimes':>9s}"
-        print(f"{r['name']:15s} {r['formula']:7s} {nbp_txt} {r['critical_temperature'] - T_ZERO_C:8.2f} "
-              f"{r['critical_pressure'] / 1e5:7.2f} {r['triple_temperature'] - T_ZERO_C:12.2f} "
-              f"{r['triple_pressure'] / 1e5:11.4g} {_fmt(r['liquid_density_at_nbp'], 1):>11s}  {r['note']}")
-    print("\nProperties: CoolProp (HEOS). NBP and liquid density at 1.01325 bar; pressures absolute.")
+        tc = r["critical_temperature"] - T_ZERO_C
+        tt = r["triple_temperature"] - T_ZERO_C
+        rho = _fmt(r["liquid_density_at_nbp"], 1)
+        print(
+            f"{r['name']:15s} {r['formula']:7s} {nbp_txt} {tc:8.2f} "
+            f"{r['critical_pressure'] / 1e5:7.2f} {tt:12.2f} "
+            f"{r['triple_pressure'] / 1e5:11.4g} {rho:>11s}  {r['note']}"
+        )
+    print(
+        "\nProperties: CoolProp (HEOS). NBP and liquid density at 1.01325 bar; pressures absolute."
+    )
     return EXIT_OK
 
 
@@ -61,12 +69,18 @@ def cmd_validate(args) -> int:
 
     facts = initial_facts(scenario)
     print(f"{args.scenario}: valid - {scenario.title}")
-    print(f"  cargo {scenario.cargo}, {scenario.tank.count} x {facts['tank_volume_m3']:.0f} m3 "
-          f"{scenario.raw['tank']['shape']}, {len(scenario.legs)} legs, "
-          f"{scenario.duration / 86400:.1f} days, model {scenario.model}")
-    print(f"  initial cargo {facts['initial_cargo_t']:.1f} t at {facts['boiling_point_c']:.2f} degC; "
-          f"IGC loading limit {facts['loading_limit_pct']:.2f} %; heat in {facts['heat_in_kw']:.1f} kW "
-          f"(BOR {facts['equivalent_bor_pct_day']:.3f} %/day on leg 1)")
+    print(
+        f"  cargo {scenario.cargo}, {scenario.tank.count} x {facts['tank_volume_m3']:.0f} m3 "
+        f"{scenario.raw['tank']['shape']}, {len(scenario.legs)} legs, "
+        f"{scenario.duration / 86400:.1f} days, model {scenario.model}"
+    )
+    print(
+        f"  initial cargo {facts['initial_cargo_t']:.1f} t "
+        f"at {facts['boiling_point_c']:.2f} degC; "
+        f"IGC loading limit {facts['loading_limit_pct']:.2f} %; "
+        f"heat in {facts['heat_in_kw']:.1f} kW "
+        f"(BOR {facts['equivalent_bor_pct_day']:.3f} %/day on leg 1)"
+    )
     return EXIT_OK
 
 
@@ -87,16 +101,25 @@ def cmd_run(args) -> int:
     s = result.summary
     print(f"{scenario.title}  [{result.status}: {result.message}]")
     if s["time_to_relief_h"] is None:
-        print(f"  relief valves do not lift; highest pressure {_fmt(s['max_pressure_barg'], 3)} barg "
-              f"({_fmt(s['margin_to_relief_bar'], 3)} bar below the set pressure)")
+        print(
+            f"  relief valves do not lift; highest pressure {_fmt(s['max_pressure_barg'], 3)} barg "
+            f"({_fmt(s['margin_to_relief_bar'], 3)} bar below the set pressure)"
+        )
     else:
-        print(f"  relief valves lift after {s['time_to_relief_h']:.1f} h "
-              f"(day {s['time_to_relief_h'] / 24:.2f})")
-    print(f"  arrival: {s['final_pressure_barg']:.3f} barg, {s['final_liquid_temp_c']:.2f} degC, "
-          f"fill {s['final_fill_pct']:.2f} %")
-    print(f"  cargo lost {s['cargo_loss_t']:.1f} t ({s['cargo_loss_pct']:.3f} %): fuel {s['fuel_t']:.1f} t, "
-          f"oxidiser {s['oxidised_t']:.1f} t, vented {s['vented_t']:.1f} t; "
-          f"reliquefied {s['reliquefied_t']:.1f} t ({s['reliquefaction_energy_kwh']:.0f} kWh)")
+        print(
+            f"  relief valves lift after {s['time_to_relief_h']:.1f} h "
+            f"(day {s['time_to_relief_h'] / 24:.2f})"
+        )
+    print(
+        f"  arrival: {s['final_pressure_barg']:.3f} barg, {s['final_liquid_temp_c']:.2f} degC, "
+        f"fill {s['final_fill_pct']:.2f} %"
+    )
+    print(
+        f"  cargo lost {s['cargo_loss_t']:.1f} t ({s['cargo_loss_pct']:.3f} %): "
+        f"fuel {s['fuel_t']:.1f} t, "
+        f"oxidiser {s['oxidised_t']:.1f} t, vented {s['vented_t']:.1f} t; "
+        f"reliquefied {s['reliquefied_t']:.1f} t ({s['reliquefaction_energy_kwh']:.0f} kWh)"
+    )
     print(f"  mean boil-off {s['mean_bor_pct_day']:.4f} %/day")
     for e in result.events:
         if e.kind not in ("leg",):
@@ -127,11 +150,19 @@ def cmd_size(args) -> int:
 
     try:
         sizing = size_plant(
-            scenario.raw, design_air_c=args.design_air_c, design_sea_c=args.design_sea_c,
-            hold_barg=args.hold_barg, fuel_credit=args.fuel_credit, margin_pct=args.margin_pct,
-            unit_kg_h=args.unit_kg_h, spare_units=args.spare_units,
-            specific_power_kwh_kg=args.specific_power_kwh_kg, horizon_days=args.horizon_days,
-            voyage_ambient=args.voyage_ambient, curves=not args.no_curves)
+            scenario.raw,
+            design_air_c=args.design_air_c,
+            design_sea_c=args.design_sea_c,
+            hold_barg=args.hold_barg,
+            fuel_credit=args.fuel_credit,
+            margin_pct=args.margin_pct,
+            unit_kg_h=args.unit_kg_h,
+            spare_units=args.spare_units,
+            specific_power_kwh_kg=args.specific_power_kwh_kg,
+            horizon_days=args.horizon_days,
+            voyage_ambient=args.voyage_ambient,
+            curves=not args.no_curves,
+        )
     except (SizingError, ScenarioError) as err:
         _problems("", err.problems)
         return EXIT_BAD_INPUT
@@ -175,9 +206,11 @@ def cmd_sweep(args) -> int:
     if varies and samples:
         problems.append("give either --vary (a grid) or --sample (Monte Carlo), not both")
     if not varies and not samples:
-        problems.append("nothing to do: give --vary KEY=VALUES (e.g. tank.fill_pct=80:98:2) or "
-                        "--sample KEY=KIND:PARAMS (e.g. insulation.rated_bor_pct_day="
-                        "normal:0.1:0.01)")
+        problems.append(
+            "nothing to do: give --vary KEY=VALUES (e.g. tank.fill_pct=80:98:2) or "
+            "--sample KEY=KIND:PARAMS (e.g. insulation.rated_bor_pct_day="
+            "normal:0.1:0.01)"
+        )
     if not samples and (args.cases is not None or args.seed is not None):
         problems.append("--cases and --seed go with --sample (Monte Carlo)")
     if args.workers is not None and args.workers < 1:
@@ -209,16 +242,33 @@ def cmd_sweep(args) -> int:
     import tqdm
 
     tqdm.tqdm.monitor_interval = 0  # no monitor thread alive when worker processes fork
-    bar = tqdm.tqdm(total=total, unit="case", file=sys.stderr, dynamic_ncols=True,
-                    disable=True if args.no_progress else None, desc="sweep")
+    bar = tqdm.tqdm(
+        total=total,
+        unit="case",
+        file=sys.stderr,
+        dynamic_ncols=True,
+        disable=True if args.no_progress else None,
+        desc="sweep",
+    )
     try:
         if distributions:
-            result = run_uncertainty(data, distributions, cases, seed=args.seed,
-                                     workers=args.workers, scheduler=args.scheduler,
-                                     progress=bar.update)
+            result = run_uncertainty(
+                data,
+                distributions,
+                cases,
+                seed=args.seed,
+                workers=args.workers,
+                scheduler=args.scheduler,
+                progress=bar.update,
+            )
         else:
-            result = run_sweep(data, variations, workers=args.workers, scheduler=args.scheduler,
-                               progress=bar.update)
+            result = run_sweep(
+                data,
+                variations,
+                workers=args.workers,
+                scheduler=args.scheduler,
+                progress=bar.update,
+            )
     except SweepError as err:
         bar.close()
         _problems("", err.problems)
@@ -231,13 +281,19 @@ def cmd_sweep(args) -> int:
 
     invalid = result.invalid
     info = result.info
-    where = {"serial": "in this process", "processes": f"on {info.workers} local processes",
-             "dask": f"on the Dask cluster at {info.address} ({info.workers} threads)"}
-    print(f"{result.title}: {len(result.rows)} cases, {len(invalid)} invalid, "
-          f"{info.seconds:.1f} s {where[info.executor]}")
+    where = {
+        "serial": "in this process",
+        "processes": f"on {info.workers} local processes",
+        "dask": f"on the Dask cluster at {info.address} ({info.workers} threads)",
+    }
+    print(
+        f"{result.title}: {len(result.rows)} cases, {len(invalid)} invalid, "
+        f"{info.seconds:.1f} s {where[info.executor]}"
+    )
     for i in invalid[:5]:
-        edits = ", ".join(f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}"
-                          for k, v in result.cases[i])
+        edits = ", ".join(
+            f"{k}={v:g}" if isinstance(v, float) else f"{k}={v}" for k, v in result.cases[i]
+        )
         print(f"  invalid case {i} ({edits}): {result.rows[i]['error']}")
     if len(invalid) > 5:
         print(f"  ... and {len(invalid) - 5} more invalid cases (see the error column)")
@@ -254,8 +310,10 @@ def cmd_sweep(args) -> int:
             cells = ", ".join(f"{n.upper()} {_fmt(stats[n], 1)}" for n in ("p10", "p50", "p90"))
             extra = ""
             if key == "time_to_relief_h":
-                extra = (f" (relief lifts in {stats['lifted_cases']} of {stats['valid_cases']} "
-                         "cases; '-' = beyond the voyage)")
+                extra = (
+                    f" (relief lifts in {stats['lifted_cases']} of {stats['valid_cases']} "
+                    "cases; '-' = beyond the voyage)"
+                )
             print(f"  {key}: {cells}{extra}")
     try:
         written = write_files(args.out, output_files(result, str(args.scenario)))
@@ -286,61 +344,128 @@ def build_parser() -> argparse.ArgumentParser:
     p.set_defaults(func=cmd_run)
 
     p = sub.add_parser(
-        "size", help="size a reliquefaction plant; holding times; IGC loading-limit table",
+        "size",
+        help="size a reliquefaction plant; holding times; IGC loading-limit table",
         description="Smallest reliquefaction plant that holds the hold pressure at the design "
-                    "ambient indefinitely and through the scenario's plant outages; holding "
-                    "time with all pressure control lost; IGC loading limit against loading "
-                    "temperature. Writes sizing.json, holding-time.csv, loading-limit.csv and "
-                    "sizing.html into --out.",
-        epilog=CAUTION)
+        "ambient indefinitely and through the scenario's plant outages; holding "
+        "time with all pressure control lost; IGC loading limit against loading "
+        "temperature. Writes sizing.json, holding-time.csv, loading-limit.csv and "
+        "sizing.html into --out.",
+        epilog=CAUTION,
+    )
     p.add_argument("scenario", help="scenario TOML file")
     p.add_argument("--out", required=True, help="output directory (created if missing)")
-    p.add_argument("--design-air-c", type=float, default=45.0, metavar="DEGC",
-                   help="design air temperature (default 45, the IGC upper design ambient)")
-    p.add_argument("--design-sea-c", type=float, default=32.0, metavar="DEGC",
-                   help="design sea temperature (default 32, the IGC upper design ambient)")
-    p.add_argument("--hold-barg", type=float, metavar="BARG",
-                   help="pressure the plant holds (default: reliquefaction.hold_barg, or the "
-                        "initial pressure if the scenario has no plant)")
-    p.add_argument("--fuel-credit", action="store_true",
-                   help="credit the lowest leg fuel demand (default: no credit, conservative)")
-    p.add_argument("--margin-pct", type=float, default=0.0, metavar="PCT",
-                   help="design margin on the required capacity (default 0)")
-    p.add_argument("--unit-kg-h", type=float, metavar="KG_H",
-                   help="capacity of one plant unit: report the units needed")
-    p.add_argument("--spare-units", type=int, default=1, metavar="N",
-                   help="stand-by units on top of those needed (default 1: N+1)")
-    p.add_argument("--specific-power-kwh-kg", type=float, metavar="KWH_KG",
-                   help="electrical energy per kg condensed (default: the scenario's)")
-    p.add_argument("--horizon-days", type=float, default=365.0, metavar="DAYS",
-                   help="longest holding-time run (default 365)")
-    p.add_argument("--voyage-ambient", action="store_true",
-                   help="run the outage voyage at each leg's own ambient, not the design ambient")
+    p.add_argument(
+        "--design-air-c",
+        type=float,
+        default=45.0,
+        metavar="DEGC",
+        help="design air temperature (default 45, the IGC upper design ambient)",
+    )
+    p.add_argument(
+        "--design-sea-c",
+        type=float,
+        default=32.0,
+        metavar="DEGC",
+        help="design sea temperature (default 32, the IGC upper design ambient)",
+    )
+    p.add_argument(
+        "--hold-barg",
+        type=float,
+        metavar="BARG",
+        help="pressure the plant holds (default: reliquefaction.hold_barg, or the "
+        "initial pressure if the scenario has no plant)",
+    )
+    p.add_argument(
+        "--fuel-credit",
+        action="store_true",
+        help="credit the lowest leg fuel demand (default: no credit, conservative)",
+    )
+    p.add_argument(
+        "--margin-pct",
+        type=float,
+        default=0.0,
+        metavar="PCT",
+        help="design margin on the required capacity (default 0)",
+    )
+    p.add_argument(
+        "--unit-kg-h",
+        type=float,
+        metavar="KG_H",
+        help="capacity of one plant unit: report the units needed",
+    )
+    p.add_argument(
+        "--spare-units",
+        type=int,
+        default=1,
+        metavar="N",
+        help="stand-by units on top of those needed (default 1: N+1)",
+    )
+    p.add_argument(
+        "--specific-power-kwh-kg",
+        type=float,
+        metavar="KWH_KG",
+        help="electrical energy per kg condensed (default: the scenario's)",
+    )
+    p.add_argument(
+        "--horizon-days",
+        type=float,
+        default=365.0,
+        metavar="DAYS",
+        help="longest holding-time run (default 365)",
+    )
+    p.add_argument(
+        "--voyage-ambient",
+        action="store_true",
+        help="run the outage voyage at each leg's own ambient, not the design ambient",
+    )
     p.add_argument("--no-curves", action="store_true", help="skip the holding-time curves")
     p.set_defaults(func=cmd_size)
 
     p = sub.add_parser(
-        "sweep", help="run a scenario over a grid of values or a Monte Carlo sample",
+        "sweep",
+        help="run a scenario over a grid of values or a Monte Carlo sample",
         description="Vary scenario keys over lists or ranges (full factorial), or draw "
-                    "uncertain keys from distributions; one summary row per case in "
-                    "sweep.csv and sweep.json, with a chart (sweep.html or uncertainty.html).",
+        "uncertain keys from distributions; one summary row per case in "
+        "sweep.csv and sweep.json, with a chart (sweep.html or uncertainty.html).",
         epilog="KEY is a dotted scenario key: tank.fill_pct, insulation.u_w_m2k, leg.0.air_c "
-               "(first leg), leg.*.air_c (every leg). VALUES: 0.02,0.03,0.04 or a range "
-               "start:stop:step (80:98:2; the stop is included when it lands on the grid). "
-               "Distributions: normal:MEAN:SD, uniform:LOW:HIGH, triangular:LOW:MODE:HIGH. "
-               + CAUTION)
+        "(first leg), leg.*.air_c (every leg). VALUES: 0.02,0.03,0.04 or a range "
+        "start:stop:step (80:98:2; the stop is included when it lands on the grid). "
+        "Distributions: normal:MEAN:SD, uniform:LOW:HIGH, triangular:LOW:MODE:HIGH. " + CAUTION,
+    )
     p.add_argument("scenario", help="scenario TOML file")
-    p.add_argument("--vary", action="append", nargs="+", metavar="KEY=VALUES",
-                   help="a key and its values; repeat for a full-factorial grid")
-    p.add_argument("--sample", action="append", nargs="+", metavar="KEY=DIST",
-                   help="an uncertain key and its distribution (Monte Carlo)")
+    p.add_argument(
+        "--vary",
+        action="append",
+        nargs="+",
+        metavar="KEY=VALUES",
+        help="a key and its values; repeat for a full-factorial grid",
+    )
+    p.add_argument(
+        "--sample",
+        action="append",
+        nargs="+",
+        metavar="KEY=DIST",
+        help="an uncertain key and its distribution (Monte Carlo)",
+    )
     p.add_argument("--cases", type=int, metavar="N", help="Monte Carlo cases (default 200)")
-    p.add_argument("--seed", type=int, metavar="S",
-                   help="Monte Carlo seed (default: a fresh one, recorded in sweep.json)")
-    p.add_argument("--scheduler", metavar="ADDRESS",
-                   help="run on a Dask distributed cluster, e.g. tcp://10.0.0.5:8786")
-    p.add_argument("--workers", type=int, metavar="N",
-                   help="local worker processes (default: all cores; 1 runs in this process)")
+    p.add_argument(
+        "--seed",
+        type=int,
+        metavar="S",
+        help="Monte Carlo seed (default: a fresh one, recorded in sweep.json)",
+    )
+    p.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="run on a Dask distributed cluster, e.g. tcp://10.0.0.5:8786",
+    )
+    p.add_argument(
+        "--workers",
+        type=int,
+        metavar="N",
+        help="local worker processes (default: all cores; 1 runs in this process)",
+    )
     p.add_argument("--no-progress", action="store_true", help="no progress bar")
     p.add_argument("--out", required=True, help="output directory (created if missing)")
     p.set_defaults(func=cmd_sweep)

@@ -30,10 +30,16 @@ def initial_facts(scenario: Scenario) -> dict:
         u_value = ins.u_value
     else:
         u_value = heat_mod.u_value_from_rated_bor(
-            ins.rated_bor, table, volume, area,
+            ins.rated_bor,
+            table,
+            volume,
+            area,
             ins.rated_fill if ins.rated_fill is not None else tank.fill,
-            tank.pressure, ins.rated_air_temperature, ins.rated_sea_temperature,
-            ins.air_exposed_fraction)
+            tank.pressure,
+            ins.rated_air_temperature,
+            ins.rated_sea_temperature,
+            ins.air_exposed_fraction,
+        )
     ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
     leg = scenario.legs[0]
     heat = ua_air * (leg.air_temperature - t_sat) + ua_sea * (leg.sea_temperature - t_sat)

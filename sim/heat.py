@@ -94,8 +94,9 @@ def u_value_from_rated_bor(
     sat = table.at(table.temperature(pressure))
     liquid_mass = fill * volume * sat.rho_liquid
     heat = rated_bor * liquid_mass * sat.latent_heat / (1.0 - sat.rho_vapour / sat.rho_liquid)
-    delta_t = (air_fraction * (air_temperature - sat.temperature)
-               + (1.0 - air_fraction) * (sea_temperature - sat.temperature))
+    delta_t = air_fraction * (air_temperature - sat.temperature) + (1.0 - air_fraction) * (
+        sea_temperature - sat.temperature
+    )
     if delta_t <= 0.0:
         raise ValueError(
             "rated ambient is not warmer than the cargo: a boil-off rate cannot be calibrated"

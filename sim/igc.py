@@ -14,7 +14,9 @@ from __future__ import annotations
 FILLING_LIMIT = 0.98
 
 
-def loading_limit(rho_reference: float, rho_loading: float, filling_limit: float = FILLING_LIMIT) -> float:
+def loading_limit(
+    rho_reference: float, rho_loading: float, filling_limit: float = FILLING_LIMIT
+) -> float:
     """Loading limit LL = FL * rho_R / rho_L as a fraction of tank volume.
 
     Parameters

@@ -272,7 +272,10 @@ def write_outputs(result: VoyageResult, out_dir: str | os.PathLike) -> list[Path
             with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
                 fh.write(text)
             temps.append((tmp, out / name))
+        umask = os.umask(0)
+        os.umask(umask)
         for tmp, final in temps:
+            os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; give the usual mode
             os.replace(tmp, final)
             written.append(final)
     finally:

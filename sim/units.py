@@ -19,17 +19,23 @@ J_PER_KWH = 3.6e6
 
 def c_to_k(temp_c):
     """Celsius to kelvin."""
-    return np.asarray(temp_c, dtype=float) + T_ZERO_C if np.ndim(temp_c) else float(temp_c) + T_ZERO_C
+    return (
+        np.asarray(temp_c, dtype=float) + T_ZERO_C if np.ndim(temp_c) else float(temp_c) + T_ZERO_C
+    )
 
 
 def k_to_c(temp_k):
     """Kelvin to Celsius."""
-    return np.asarray(temp_k, dtype=float) - T_ZERO_C if np.ndim(temp_k) else float(temp_k) - T_ZERO_C
+    return (
+        np.asarray(temp_k, dtype=float) - T_ZERO_C if np.ndim(temp_k) else float(temp_k) - T_ZERO_C
+    )
 
 
 def barg_to_pa(barg):
     """Gauge pressure in bar (against 1.01325 bar) to absolute pressure in Pa."""
-    return np.asarray(barg, dtype=float) * 1e5 + P_ATM if np.ndim(barg) else float(barg) * 1e5 + P_ATM
+    return (
+        np.asarray(barg, dtype=float) * 1e5 + P_ATM if np.ndim(barg) else float(barg) * 1e5 + P_ATM
+    )
 
 
 def pa_to_barg(pa):

@@ -20,8 +20,9 @@ def voyage_days(data: dict) -> float:
     return float(sum(leg.get("days", 0.0) for leg in data.get("leg", [])))
 
 
-def fail_control(data: dict, start_day: float, which: str = "reliquefaction",
-                 hours: float | None = None) -> dict:
+def fail_control(
+    data: dict, start_day: float, which: str = "reliquefaction", hours: float | None = None
+) -> dict:
     """Scenario in which pressure control fails at ``start_day``.
 
     Parameters
@@ -58,6 +59,8 @@ def fail_control(data: dict, start_day: float, which: str = "reliquefaction",
         elif key not in out:
             continue
         out[key].setdefault("outage", []).append(dict(window))
-    words = "reliquefaction plant fails" if which == "reliquefaction" else "all pressure control fails"
+    words = (
+        "reliquefaction plant fails" if which == "reliquefaction" else "all pressure control fails"
+    )
     out["title"] = f"{out.get('title', 'Scenario')} | what-if: {words} at day {start_day:g}"
     return out

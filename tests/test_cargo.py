@@ -38,7 +38,9 @@ def test_trade_facts():
     assert 152.0 - 0.1 <= ROWS["n-butane"]["critical_temperature"] - T_ZERO_C <= 153.0
     # Common practice, no source: n-butane's vapour pressure at room
     # temperature (20 degC) is about 2 bar.
-    assert saturation_table("n-butane").pressure(T_ZERO_C + 20.0) / 1e5 == pytest.approx(2.0, abs=0.15)
+    assert saturation_table("n-butane").pressure(T_ZERO_C + 20.0) / 1e5 == pytest.approx(
+        2.0, abs=0.15
+    )
     # Common practice, no source: liquid LNG is roughly 600 times denser than
     # the gas at ambient conditions (methane gas at 15 degC, 1 atm, ideal gas).
     rho_gas = P_ATM * ROWS["methane"]["molar_mass"] / (8.314462618 * (T_ZERO_C + 15.0))

@@ -12,13 +12,36 @@ from sim.cli import main
 from sim.scenario import demo_scenarios
 
 SUMMARY_KEYS = {
-    "time_to_relief_h", "max_pressure_barg", "final_pressure_barg", "final_liquid_temp_c",
-    "final_fill_pct", "initial_cargo_t", "final_cargo_t", "boil_off_t", "vented_t",
-    "reliquefied_t", "fuel_t", "oxidised_t", "cargo_loss_t", "mean_bor_pct_day",
-    "reliquefaction_energy_kwh", "events",
+    "time_to_relief_h",
+    "max_pressure_barg",
+    "final_pressure_barg",
+    "final_liquid_temp_c",
+    "final_fill_pct",
+    "initial_cargo_t",
+    "final_cargo_t",
+    "boil_off_t",
+    "vented_t",
+    "reliquefied_t",
+    "fuel_t",
+    "oxidised_t",
+    "cargo_loss_t",
+    "mean_bor_pct_day",
+    "reliquefaction_energy_kwh",
+    "events",
 }
-CSV_COLUMNS = ["time_h", "pressure_barg", "liquid_temp_c", "fill_pct", "cargo_t", "heat_in_kw",
-               "boil_off_kg_h", "vented_kg_h", "reliquefied_kg_h", "fuel_kg_h", "oxidised_kg_h"]
+CSV_COLUMNS = [
+    "time_h",
+    "pressure_barg",
+    "liquid_temp_c",
+    "fill_pct",
+    "cargo_t",
+    "heat_in_kw",
+    "boil_off_kg_h",
+    "vented_kg_h",
+    "reliquefied_kg_h",
+    "fuel_kg_h",
+    "oxidised_kg_h",
+]
 
 
 @pytest.mark.parametrize("name", sorted(demo_scenarios()))
@@ -41,15 +64,19 @@ def test_every_demo_runs_through_the_cli(name, tmp_path, capsys):
     assert max(b - a for a, b in zip(times, times[1:])) <= 1.0 + 1e-9
     # mass balance in the files: loss = fuel + oxidiser + vented
     lost = summary["initial_cargo_t"] - summary["final_cargo_t"]
-    assert lost == pytest.approx(summary["fuel_t"] + summary["oxidised_t"] + summary["vented_t"],
-                                 rel=1e-6, abs=1e-9)
+    assert lost == pytest.approx(
+        summary["fuel_t"] + summary["oxidised_t"] + summary["vented_t"], rel=1e-6, abs=1e-9
+    )
     assert summary["status"] in ("completed", "stopped")
 
 
 def test_bad_scenario_exit_code_and_message(tmp_path, capsys):
     bad = tmp_path / "bad.toml"
-    text = demo_scenarios()["lpg-refrigerated-laden"].read_text().replace(
-        "fill_pct = 97.4", "fill_pct = 120.0")
+    text = (
+        demo_scenarios()["lpg-refrigerated-laden"]
+        .read_text()
+        .replace("fill_pct = 97.4", "fill_pct = 120.0")
+    )
     assert "fill_pct = 120.0" in text
     bad.write_text(text)
     out_dir = tmp_path / "out"
@@ -61,8 +88,11 @@ def test_bad_scenario_exit_code_and_message(tmp_path, capsys):
 
 def test_unknown_key_and_missing_file(tmp_path, capsys):
     bad = tmp_path / "bad.toml"
-    bad.write_text(demo_scenarios()["lpg-refrigerated-laden"].read_text().replace(
-        "pressure_barg = 0.1", "pressure_bar = 0.1", 1))
+    bad.write_text(
+        demo_scenarios()["lpg-refrigerated-laden"]
+        .read_text()
+        .replace("pressure_barg = 0.1", "pressure_bar = 0.1", 1)
+    )
     assert main(["validate", str(bad)]) == 2
     err = capsys.readouterr().err
     assert "tank.pressure_bar" in err and "pressure_barg" in err

@@ -31,7 +31,9 @@ def test_closed_tank_first_law():
     res = simulate(sc)
     vol = sc.tank.shape.volume()
     mass = res.summary["initial_cargo_t"] * 1000
-    u0 = coolprop_internal_energy("propane", mass, vol, c_to_k(res.summary["initial_liquid_temp_c"]))
+    u0 = coolprop_internal_energy(
+        "propane", mass, vol, c_to_k(res.summary["initial_liquid_temp_c"])
+    )
     u1 = coolprop_internal_energy("propane", mass, vol, c_to_k(res.summary["final_liquid_temp_c"]))
     heat = res.summary["heat_in_mwh"] * 3.6e9
     assert res.summary["boil_off_t"] == 0.0
@@ -42,8 +44,16 @@ def test_closed_tank_first_law():
 
 def test_time_to_relief_matches_independent_quadrature():
     """Closed tank: t_relief = integral of dU / (UA (T_amb - T)) along the saturation path."""
-    sc = closed_tank(cargo="propane", fill=0.6, pressure_barg=0.1, relief_barg=2.0,
-                     u_value=0.5, air_c=30, sea_c=30, days=60)
+    sc = closed_tank(
+        cargo="propane",
+        fill=0.6,
+        pressure_barg=0.1,
+        relief_barg=2.0,
+        u_value=0.5,
+        air_c=30,
+        sea_c=30,
+        days=60,
+    )
     res = simulate(sc)
     vol, area = sc.tank.shape.volume(), sc.tank.shape.surface_area()
     state = abstract_state(cargo_info("propane").coolprop_name)
@@ -120,10 +130,16 @@ def test_fuel_floor_holds_pressure_when_demand_exceeds_boil_off():
 
 def test_rated_bor_reproduced_at_rated_ambient():
     """A vented tank at the rated ambient boils off exactly the rated BOR (definition check)."""
-    sc = closed_tank(cargo="methane", fill=0.98, pressure_barg=0.1, relief_barg=0.1, days=1,
-                     air_c=45, sea_c=32)
-    ins = Insulation(None, 0.7, rated_bor=0.0015 / 86400, rated_air_temperature=c_to_k(45),
-                     rated_sea_temperature=c_to_k(32))
+    sc = closed_tank(
+        cargo="methane", fill=0.98, pressure_barg=0.1, relief_barg=0.1, days=1, air_c=45, sea_c=32
+    )
+    ins = Insulation(
+        None,
+        0.7,
+        rated_bor=0.0015 / 86400,
+        rated_air_temperature=c_to_k(45),
+        rated_sea_temperature=c_to_k(32),
+    )
     sc = dataclasses.replace(sc, insulation=ins)
     res = simulate(sc)
     first = res.timeseries.iloc[1]
@@ -144,8 +160,9 @@ def test_outage_makes_pressure_rise_and_events_are_recorded():
 
 def test_liquid_full_stops_the_run_with_an_event():
     # A nearly full tank warming a long way (propane expands ~0.3 %/K): liquid-full before relief
-    sc = closed_tank(cargo="propane", fill=0.97, pressure_barg=0.1, relief_barg=17.0,
-                     u_value=2.0, days=200)
+    sc = closed_tank(
+        cargo="propane", fill=0.97, pressure_barg=0.1, relief_barg=17.0, u_value=2.0, days=200
+    )
     res = simulate(sc)
     assert res.status == "stopped"
     assert [e.kind for e in res.events][-1] == "liquid-full"
@@ -158,14 +175,23 @@ def test_carbon_dioxide_triple_point_event():
     # Reliquefaction held below the triple-point pressure pulls the tank down to it.
     from sim.scenario import Reliquefaction
 
-    sc = closed_tank(cargo="carbon-dioxide", fill=0.5, pressure_barg=6.0, relief_barg=9.0,
-                     u_value=0.1, air_c=20, sea_c=20, days=10)
+    sc = closed_tank(
+        cargo="carbon-dioxide",
+        fill=0.5,
+        pressure_barg=6.0,
+        relief_barg=9.0,
+        u_value=0.1,
+        air_c=20,
+        sea_c=20,
+        days=10,
+    )
     sc = dataclasses.replace(sc, reliquefaction=Reliquefaction(5000 / 3600, barg_to_pa(3.0)))
     res = simulate(sc)
     assert res.status == "stopped"
     assert res.events[-1].kind == "triple-point"
     assert res.timeseries["pressure_barg"].iloc[-1] == pytest.approx(
-        (0.51796e6 - 101325) / 1e5, abs=0.01)  # CO2 triple point 0.51796 MPa, NIST from memory
+        (0.51796e6 - 101325) / 1e5, abs=0.01
+    )  # CO2 triple point 0.51796 MPa, NIST from memory
 
 
 def test_multiple_tanks_scale_linearly():

@@ -26,7 +26,9 @@ def test_hand_worked_case():
     # rho_L at 0.5 barg, rho_R at 17.0 barg (about 50 degC).
     rho_l = _saturated_liquid_density_at_pressure("propane", barg_to_pa(0.5))
     rho_r = _saturated_liquid_density_at_pressure("propane", barg_to_pa(17.0))
-    assert 560 < rho_l < 585 and 430 < rho_r < 470  # sanity: propane liquid about 570 and 450 kg/m3, from memory
+    assert (
+        560 < rho_l < 585 and 430 < rho_r < 470
+    )  # sanity: propane liquid about 570 and 450 kg/m3, from memory
     expected = 0.98 * rho_r / rho_l
     assert loading_limit(rho_r, rho_l) == pytest.approx(expected, rel=1e-12)
     sc = closed_tank(cargo="propane", fill=0.5, pressure_barg=0.5, relief_barg=17.0)
@@ -36,10 +38,12 @@ def test_hand_worked_case():
 
 
 def test_fill_above_limit_is_reported_as_event():
-    fine = simulate(closed_tank(cargo="propane", fill=0.70, pressure_barg=0.5,
-                                relief_barg=17.0, days=0.5))
-    over = simulate(closed_tank(cargo="propane", fill=0.90, pressure_barg=0.5,
-                                relief_barg=17.0, days=0.5))
+    fine = simulate(
+        closed_tank(cargo="propane", fill=0.70, pressure_barg=0.5, relief_barg=17.0, days=0.5)
+    )
+    over = simulate(
+        closed_tank(cargo="propane", fill=0.90, pressure_barg=0.5, relief_barg=17.0, days=0.5)
+    )
     assert not any(e.kind == "loading-limit-exceeded" for e in fine.events)
     event = next(e for e in over.events if e.kind == "loading-limit-exceeded")
     assert event.time == 0.0 and "90.00 %" in event.detail
