@@ -180,7 +180,40 @@ class _Voyage:
         for key in ("fuel", "reliquefaction", "oxidiser"):
             for o in self.outages(key):
                 points.update(p for p in (o.start, o.end) if 0.0 <= p <= end)
+        points.update(self.mixing_times())
         return sorted(points)
+
+    def mixing_times(self) -> list[float]:
+        """Times at which the tank contents are mixed (heavy weather, cargo pump) [s].
+
+        Read from ``scenario.mixing_times`` when the scenario has it; times
+        outside the voyage are ignored.
+        """
+        end = self.scenario.duration
+        return sorted({float(m) for m in getattr(self.scenario, "mixing_times", ())
+                       if 0.0 <= float(m) < end})
+
+    def apply_mixing(self, t: float, y, leg):
+        """Mix the tank contents at time t [s]: the model's ``mix`` hook, and an event.
+
+        Models without a ``mix`` method (the equilibrium model, uniform by
+        construction) are left unchanged; the event is recorded either way.
+        """
+        from .units import pa_to_barg
+
+        n = self.n_model
+        before = self.evaluate(y, leg).pressure
+        mix = getattr(self.model, "mix", None)
+        if mix is None:
+            self.note(t, "mixing", "tank contents mixed (heavy weather or cargo pump); "
+                                   f"no effect on the {self.scenario.model} model")
+            return y
+        y = np.array(y, dtype=float)
+        y[:n] = mix(y[:n])
+        after = self.evaluate(y, leg).pressure
+        self.note(t, "mixing", "tank contents mixed (heavy weather or cargo pump): pressure "
+                               f"{pa_to_barg(before):.3f} -> {pa_to_barg(after):.3f} barg")
+        return y
 
     # -- state evaluation -----------------------------------------------------
     def evaluate(self, y, leg):
@@ -372,6 +405,8 @@ def simulate(scenario: Scenario, progress=None):
     stop = False
     bi = 0
     leg_started = None
+    mix_times = voyage.mixing_times()
+    mi = 0
     while t < end and not stop:
         while bi + 1 < len(breaks) and breaks[bi + 1] <= t * (1 + 1e-15) + 1e-9:
             bi += 1
@@ -381,10 +416,15 @@ def simulate(scenario: Scenario, progress=None):
             voyage.note(t, "leg", f"leg '{leg.name}' starts: air {leg.air_temperature - 273.15:.1f} degC, "
                                   f"sea {leg.sea_temperature - 273.15:.1f} degC")
             leg_started = leg
+        mixed = False
+        while mi < len(mix_times) and mix_times[mi] <= t * (1 + 1e-15) + 1e-9:
+            y = voyage.apply_mixing(t, y, leg)
+            mi += 1
+            mixed = True
         caps = voyage.capacities(t)
         state = voyage.evaluate(y, leg)
         _note_plant(voyage, t)
-        if mode is None or mode_caps != caps:
+        if mode is None or mode_caps != caps or mixed:
             old = mode
             mode = voyage.choose_mode(state, caps)
             voyage.note_mode_change(t, old, mode, state)

@@ -330,3 +330,45 @@ def test_problems_are_placed_next_to_their_field():
         parse_scenario(data)
     placed = {form.field_of_problem(p) for p in caught.value.problems}
     assert placed == {"tank.fill_pct", "leg"}
+
+
+def test_two_zone_run_overlays_the_equilibrium_model_with_both_relief_times():
+    # A closed tank with a relief lift inside the voyage; pick the model on Set-up.
+    stem = pick_demo(lambda d: "reliquefaction" not in d and "oxidiser" not in d)
+    at = start(stem)
+    at.selectbox(key="model").set_value("two-zone").run()
+    assert not errors(at)
+    at.button(key="run").click().run()
+    assert not at.exception, at.exception
+
+    # Expected: the engine's own runs of the same scenario under both models.
+    data = demo_data(stem)
+    runs = {m: simulate(parse_scenario(set_key(data, "model", m)))
+            for m in ("equilibrium", "two-zone")}
+    for model, result in runs.items():
+        shown = metric(at, f"Relief valve, {model}")
+        hours = result.summary["time_to_relief_h"]
+        if hours is None:
+            assert shown in ("Holds all voyage", "Does not lift")
+        else:
+            assert_shown(shown, hours)
+    spec = figure(at, "chart.model_pair")
+    pair = curves(spec, "pressure")
+    assert len(pair) == 2
+    np.testing.assert_allclose(array(pair[0]["y"]), runs["equilibrium"].timeseries["pressure_barg"],
+                               rtol=1e-12)
+    np.testing.assert_allclose(array(pair[1]["y"]), runs["two-zone"].timeseries["pressure_barg"],
+                               rtol=1e-12)
+
+
+def test_mixing_days_text_becomes_mixing_tables_and_bad_entries_are_named():
+    from ui import form
+
+    problems: list[str] = []
+    assert form._mixing_from_text("4, 9.5", problems) == [{"day": 4}, {"day": 9.5}]
+    assert problems == []
+    assert form._mixing_from_text("4, soon", problems) == [{"day": 4}]
+    assert len(problems) == 1 and "'soon'" in problems[0]
+    assert form.field_of_problem(problems[0]) == "mixing.days"
+    assert form.field_of_problem("mixing[1].day = 300.0 is at or after the voyage end") == \
+        "mixing.days"

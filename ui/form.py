@@ -65,6 +65,10 @@ FIELDS: dict[str, Field] = {f.key: f for f in (
        + "; ".join(f"{k}: {v}" for k, v in MODEL_DESCRIPTIONS.items()), "choice"),
     _f("cargo.fluid", "Cargo", "Pure cargo; methane stands in for LNG and propane for LPG.",
        "choice"),
+    _f("mixing.days", "Mixing on days", "Days from departure on which the liquid is stirred "
+       "(heavy weather, a cargo pump run), comma-separated, e.g. '4, 9'. Acts on the two-zone "
+       "model: the warm surface layer is mixed into the bulk. Empty: never.", "text",
+       blank="none"),
     _f("tank.shape", "Tank shape", "Internal shape of each cargo tank (type C tanks are "
        "horizontal cylinders or bilobes; membrane tanks are prismatic).", "choice"),
     _f("tank.diameter_m", "Diameter (m)", "Internal diameter.", step=0.5, fmt="%.2f"),
@@ -288,6 +292,9 @@ def flat_from_dict(data: dict) -> tuple[dict, pd.DataFrame, pd.DataFrame]:
         "insulation.basis": "u_w_m2k" if "u_w_m2k" in ins else "rated_bor_pct_day",
         "reliquefaction": bool(rl),
         "oxidiser": bool(ox),
+        "mixing.days": ", ".join(
+            f"{item.get('day')}" for item in (data.get("mixing") or [])
+            if isinstance(item, dict)),
     }
     for key in DIMENSION_KEYS:
         flat[key] = number(tank.get(key.split(".", 1)[1]))
@@ -392,7 +399,27 @@ def dict_from_form(flat: dict, legs: pd.DataFrame, outages: pd.DataFrame) -> tup
         fuel["outage"] = outage_rows["fuel"]
     if fuel:
         data["fuel"] = fuel
+    mixing = _mixing_from_text(flat.get("mixing.days"), problems)
+    if mixing:
+        data["mixing"] = mixing
     return data, problems
+
+
+def _mixing_from_text(text, problems: list[str]) -> list[dict]:
+    """``"4, 9"`` -> ``[{"day": 4.0}, {"day": 9.0}]``; bad entries become problems."""
+    out = []
+    for part in str(text or "").replace(";", ",").split(","):
+        part = part.strip()
+        if not part:
+            continue
+        try:
+            day = float(part)
+        except ValueError:
+            problems.append(f"Mixing on days: {part!r} is not a number of days; "
+                            "write days separated by commas, e.g. '4, 9'")
+            continue
+        out.append({"day": int(day) if day.is_integer() and "." not in part else day})
+    return out
 
 
 def _legs_from_frame(legs: pd.DataFrame) -> list[dict]:
@@ -439,6 +466,8 @@ def field_of_problem(problem: str) -> str | None:
         return "leg"
     if ".outage" in head or head.startswith("Outages"):
         return "outage"
+    if head.startswith("mixing") or problem.startswith("Mixing on days"):
+        return "mixing.days"
     if head.startswith("insulation") and head.rstrip(":") == "insulation":
         return "insulation.basis"
     if head in FIELDS:

@@ -159,3 +159,24 @@ def events_table(events: pd.DataFrame) -> pd.DataFrame:
         "kind": events["kind"].astype(str),
     })
     return out.reset_index(drop=True)
+
+
+def model_pair(label_a: str, summary_a: dict, label_b: str, summary_b: dict) -> list[Headline]:
+    """Relief-valve headline for the same voyage under two tank models, and the difference."""
+    items = []
+    for label, summary in ((label_a, summary_a), (label_b, summary_b)):
+        value, note = relief_text(summary)
+        items.append(Headline(f"relief:{label}", f"Relief valve, {label}", value, note,
+                              f"First relief-valve lift with the {label} tank model."))
+    ha, hb = _num(summary_a.get("time_to_relief_h")), _num(summary_b.get("time_to_relief_h"))
+    if ha is not None and hb is not None:
+        value = f"{hb - ha:+.1f} h"
+        note = f"{label_b} minus {label_a}"
+        if ha > 0:
+            note += f"; ratio {hb / ha:.2f}"
+    else:
+        value, note = "n/a", "the valve does not lift in both runs"
+    items.append(Headline("relief:difference", "Difference in time to lift", value, note,
+                          "How much the choice of tank model moves the relief-valve lift."))
+    return items
+

@@ -25,7 +25,8 @@ def field(key: str, where=None, **kwargs):
         where.number_input(spec.label, key=key, value=None, step=spec.step, format=spec.fmt,
                            help=spec.help, placeholder=spec.blank or "required", **kwargs)
     elif spec.kind == "text":
-        where.text_input(spec.label, key=key, help=spec.help, **kwargs)
+        where.text_input(spec.label, key=key, help=spec.help, placeholder=spec.blank or "",
+                         **kwargs)
     elif spec.kind == "choice":
         where.selectbox(spec.label, form.CHOICES[key], key=key, help=spec.help,
                         format_func=functools.partial(form.choice_label, key),

@@ -19,14 +19,18 @@ to every model through the same small interface:
 """
 
 from .equilibrium import EquilibriumModel
+from .two_zone import TwoZoneModel
 
 #: Registry of tank models by scenario-file name. The first is the default.
 MODELS = {
     "equilibrium": EquilibriumModel,
+    "two-zone": TwoZoneModel,
 }
 
 DEFAULT_MODEL = "equilibrium"
 
 MODEL_DESCRIPTIONS = {
     "equilibrium": "Liquid and vapour saturated at one temperature (homogeneous).",
+    "two-zone": "Superheated vapour over a liquid with a warm surface layer and a colder bulk "
+                "(thermal stratification).",
 }

@@ -54,6 +54,10 @@ class TankState:
     fill : float  liquid volume over tank volume [-]
     liquid_mass, vapour_mass : float  [kg]
     heat_in : float  heat flowing into the tank from outside [W]
+    surface_temperature : float  liquid at the free surface [K]; defaults to
+        ``liquid_temperature`` (models without a stratified liquid)
+    bulk_liquid_temperature : float  liquid below any warm surface layer [K];
+        defaults to ``liquid_temperature``
     """
 
     pressure: float
@@ -65,6 +69,14 @@ class TankState:
     heat_in: float
     # model internals used by the rate functions
     _extra: tuple = ()
+    surface_temperature: float | None = None
+    bulk_liquid_temperature: float | None = None
+
+    def __post_init__(self):
+        if self.surface_temperature is None:
+            self.surface_temperature = self.liquid_temperature
+        if self.bulk_liquid_temperature is None:
+            self.bulk_liquid_temperature = self.liquid_temperature
 
     @property
     def cargo_mass(self) -> float:

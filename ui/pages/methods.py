@@ -34,6 +34,31 @@ $$\dot m = \frac{\dot Q}{h_{fg}}\left(1 - \frac{\rho_v}{\rho_l}\right)$$
 The heat boils liquid ($\dot Q/h_{fg}$), and part of the new vapour stays to
 fill the space the evaporated liquid left.
 
+### Tank model: two-zone (stratified)
+
+Real tanks are not at one temperature. Heat through the **dry walls** warms
+the vapour above the saturation temperature (superheat). Heat through the
+**wetted walls** warms a thin layer of liquid next to the wall; being lighter,
+it rises along the wall and spreads under the surface, so a **warm surface
+layer** grows on top of a colder bulk. The pressure follows the temperature
+at the liquid surface, not the average, so it climbs faster than the
+equilibrium model says — in published tank tests 1.4 to 3 times faster, most
+at high fill and high heat flux.
+
+The two-zone model keeps the vapour and the liquid as separate volumes with
+their own temperatures; the interface sits at the saturation temperature of
+the tank pressure; heat crosses from vapour and from the warm layer to the
+interface by natural convection, and the balance at the interface decides how
+much liquid evaporates or vapour condenses. The wall boundary layer feeds the
+warm layer (a turbulent free-convection boundary layer on the wetted wall).
+A **mixing** time in the scenario (heavy weather, a cargo pump started) stirs
+the warm layer into the bulk and the pressure drops back towards the bulk's
+saturation pressure. Details, parameters and the comparison with published
+tests: `docs/two-zone.md`.
+
+On the Results page, **Tank model comparison** runs the same voyage under the
+other model and overlays both pressure curves with both relief-lift times.
+
 ### Heat in
 
 $$\dot Q = U A\,[\,f_{air}(T_{air} - T) + (1 - f_{air})(T_{sea} - T)\,]$$
@@ -72,7 +97,10 @@ loading. A fill above it is logged at the start of the run.
 * The equilibrium model **under-predicts the early pressure rise when the liquid
   stratifies**: a warm layer at the surface sets the pressure long before the
   bulk warms. Treat its time to relief-valve lift as an upper estimate for a
-  tank left undisturbed.
+  tank left undisturbed, and compare with the two-zone model.
+* The two-zone model lumps the vapour into one volume (no stratification in
+  the vapour) and is checked against one published series of liquid-hydrogen
+  tests only (see `docs/two-zone.md`).
 * No sloshing, no spray, no cool-down or loading operations; the tank walls and
   insulation store no heat.
 * Identical tanks share the plant equally; one tank behaving differently is not

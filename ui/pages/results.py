@@ -51,6 +51,41 @@ def _downloads(run: state.Run, figures: dict) -> None:
     st.caption("Each chart's camera button (top right of the chart) also saves it as PNG.")
 
 
+def _model_comparison(run: state.Run) -> None:
+    """The same voyage under the other tank model, overlaid (equilibrium vs two-zone)."""
+    from sim.models import MODELS
+
+    this = run.data.get("model", "equilibrium")
+    other = "equilibrium" if this != "equilibrium" else "two-zone"
+    if other not in MODELS:
+        return
+    st.markdown("##### Tank model comparison")
+    if not st.toggle(f"Overlay the same voyage with the {other} model", key="results.model_overlay",
+                     value=this != "equilibrium",
+                     help="The equilibrium model keeps liquid and vapour at one temperature; "
+                          "the two-zone model lets a warm layer gather at the liquid surface "
+                          "and the vapour superheat, so pressure usually rises faster. "
+                          "See Methods."):
+        return
+    data = dict(run.data, model=other)
+    outcome = runner.run(exports.setup_toml(data))
+    if outcome.result is None:
+        widgets.problem_list(outcome.problems, f"The {other} run did not complete:")
+        return
+    pair = [(this, run.result), (other, outcome.result)]
+    if this != "equilibrium":
+        pair.reverse()  # equilibrium first: the reference
+    cols = st.columns(3)
+    for col, item in zip(cols, headline.model_pair(pair[0][0], pair[0][1].summary,
+                                                   pair[1][0], pair[1][1].summary)):
+        with col.container(border=True):
+            st.metric(item.label, item.value, help=item.help)
+            st.caption(item.note)
+    fig = charts.pressure_figure(pair, charts.control_levels(run.data))
+    fig.update_layout(title={"text": "Tank pressure: equilibrium vs two-zone"})
+    widgets.plot(fig, "chart.model_pair")
+
+
 def render() -> None:
     state.init()
     st.title("Results")
@@ -92,6 +127,7 @@ def render() -> None:
     with b:
         widgets.plot(figures["fill_pct"], "chart.fill_pct")
     widgets.plot(figures["boil_off"], "chart.boil_off")
+    _model_comparison(run)
 
     st.markdown("##### Events")
     events = headline.events_table(result.events_frame())

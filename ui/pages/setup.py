@@ -105,9 +105,10 @@ def _inputs() -> dict:
 
     with _group("Cargo and tanks"):
         slots["title"] = widgets.field("title")
-        a, b = st.columns(2)
+        a, b, c = st.columns(3)
         slots["cargo.fluid"] = widgets.field("cargo.fluid", a)
         slots["model"] = widgets.field("model", b)
+        slots["mixing.days"] = widgets.field("mixing.days", c)
         a, b, c = st.columns(3)
         slots["tank.shape"] = widgets.field("tank.shape", a)
         slots["tank.count"] = widgets.field("tank.count", b)
