@@ -61,8 +61,11 @@ class Event:
 
     def as_dict(self) -> dict:
         """``{time_h, kind, detail}`` as in ``summary.json``."""
-        return {"time_h": round(self.time / SECONDS_PER_HOUR, 6), "kind": self.kind,
-                "detail": self.detail}
+        return {
+            "time_h": round(self.time / SECONDS_PER_HOUR, 6),
+            "kind": self.kind,
+            "detail": self.detail,
+        }
 
 
 @dataclass
@@ -99,7 +102,9 @@ class VoyageResult:
 
     def events_frame(self) -> pd.DataFrame:
         """Events as a table with ``time_h, kind, detail``."""
-        return pd.DataFrame([e.as_dict() for e in self.events], columns=["time_h", "kind", "detail"])
+        return pd.DataFrame(
+            [e.as_dict() for e in self.events], columns=["time_h", "kind", "detail"]
+        )
 
 
 def _sample_times(segments, t_final: float) -> list[float]:
@@ -117,7 +122,6 @@ def _sample_times(segments, t_final: float) -> list[float]:
 def build_result(voyage, segments, status: str, message: str, t_final: float) -> VoyageResult:
     """Sample the segments and assemble a :class:`VoyageResult` (whole ship)."""
     scenario = voyage.scenario
-    count = voyage.count
     n = voyage.n_model
     spec = scenario.reliquefaction
     specific_power = spec.specific_power if spec is not None else 0.0
@@ -139,16 +143,19 @@ def build_result(voyage, segments, status: str, message: str, t_final: float) ->
     frame = pd.DataFrame({k: np.concatenate([b[k] for b in blocks]) for k in blocks[0]})
     events = sorted(voyage.events, key=lambda e: e.time)
     summary = _summary(voyage, frame, events, final_y, status, message, t_final, specific_power)
-    return VoyageResult(scenario.title, scenario.model, scenario.cargo, status, message, frame,
-                        events, summary)
+    return VoyageResult(
+        scenario.title, scenario.model, scenario.cargo, status, message, frame, events, summary
+    )
 
 
 def _columns(voyage, ts, y, mode, caps, leg, specific_power) -> dict:
     """Time-series columns (whole ship) for the samples of one segment."""
     count, n = voyage.count, voyage.n_model
     state = voyage.model.evaluate_many(y[:n], leg.air_temperature, leg.sea_temperature)
-    rates = [np.broadcast_to(np.asarray(r, dtype=float), ts.shape)
-             for r in voyage.rates(state, mode, caps)]
+    rates = [
+        np.broadcast_to(np.asarray(r, dtype=float), ts.shape)
+        for r in voyage.rates(state, mode, caps)
+    ]
     idx = voyage.index
     zero = np.zeros_like(ts)
 
@@ -188,7 +195,7 @@ def _summary(voyage, frame, events, final_y, status, message, t_final, specific_
     first = frame.iloc[0]
     last = frame.iloc[-1]
     kg_to_t = count / 1000.0
-    heat_j, fuel, reliq, oxid, vent = (float(v) for v in final_y[n:n + 5])
+    heat_j, fuel, reliq, oxid, vent = (float(v) for v in final_y[n : n + 5])
     initial_t = float(first["cargo_t"])
     final_t = float(last["cargo_t"])
     boil_off = (fuel + reliq + oxid + vent) * kg_to_t
@@ -240,12 +247,12 @@ def _summary(voyage, frame, events, final_y, status, message, t_final, specific_
     }
 
 
-def _clean(value):
-    """JSON-safe: NaN/inf become None, numpy scalars become Python numbers."""
+def json_safe(value):
+    """JSON-safe copy: NaN/inf become None, numpy scalars Python numbers, keys strings."""
     if isinstance(value, dict):
-        return {k: _clean(v) for k, v in value.items()}
+        return {str(k): json_safe(v) for k, v in value.items()}
     if isinstance(value, list | tuple):
-        return [_clean(v) for v in value]
+        return [json_safe(v) for v in value]
     if isinstance(value, np.generic):
         value = value.item()
     if isinstance(value, float) and not math.isfinite(value):
@@ -255,7 +262,7 @@ def _clean(value):
 
 def summary_json(result: VoyageResult) -> str:
     """The ``summary.json`` text."""
-    return json.dumps(_clean(result.summary), indent=2)
+    return json.dumps(json_safe(result.summary), indent=2)
 
 
 def timeseries_csv(result: VoyageResult) -> str:

@@ -42,6 +42,7 @@ from typing import Any
 import numpy as np
 
 from . import CAUTION, __version__
+from .results import json_safe
 
 #: Largest number of cases one sweep may have (a guard against a typo such as
 #: a step of 0.0001 that would queue millions of runs).
@@ -1036,22 +1037,9 @@ def percentiles(result: SweepResult, keys: Sequence[str] = PERCENTILE_KEYS) -> d
 # ---------------------------------------------------------------------------
 
 
-def _clean(value):
-    """JSON-safe: NaN/inf -> None, numpy scalars -> Python numbers."""
-    if isinstance(value, dict):
-        return {str(k): _clean(v) for k, v in value.items()}
-    if isinstance(value, list | tuple):
-        return [_clean(v) for v in value]
-    if isinstance(value, np.generic):
-        value = value.item()
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    return value
-
-
 def to_json(payload: dict) -> str:
     """JSON text of an output payload (NaN and inf written as null)."""
-    return json.dumps(_clean(payload), indent=2)
+    return json.dumps(json_safe(payload), indent=2)
 
 
 def sweep_csv(result: SweepResult) -> str:

@@ -99,22 +99,34 @@ class _Voyage:
             u_value = ins.u_value
         else:
             u_value = heat_mod.u_value_from_rated_bor(
-                ins.rated_bor, self.table, self.volume, area,
+                ins.rated_bor,
+                self.table,
+                self.volume,
+                area,
                 ins.rated_fill if ins.rated_fill is not None else tank.fill,
-                tank.pressure, ins.rated_air_temperature, ins.rated_sea_temperature,
+                tank.pressure,
+                ins.rated_air_temperature,
+                ins.rated_sea_temperature,
                 ins.air_exposed_fraction,
             )
         self.u_value = u_value
         self.area = area
         ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
-        self.model = MODELS[scenario.model](self.table, self.volume, ua_air, ua_sea,
-                                            shape=self.shape)
+        self.model = MODELS[scenario.model](
+            self.table, self.volume, ua_air, ua_sea, shape=self.shape
+        )
         self.n_model = len(self.model.state_names)
 
         sinks = [Sink("fuel", "fuel (engines)", VAPOUR, scenario.fuel_floor_pressure)]
         if scenario.reliquefaction is not None:
-            sinks.append(Sink("reliquefaction", "reliquefaction plant", RELIQUEFY,
-                              scenario.reliquefaction.hold_pressure))
+            sinks.append(
+                Sink(
+                    "reliquefaction",
+                    "reliquefaction plant",
+                    RELIQUEFY,
+                    scenario.reliquefaction.hold_pressure,
+                )
+            )
         if scenario.oxidiser is not None:
             sinks.append(Sink("oxidiser", "oxidiser", VAPOUR, scenario.oxidiser.set_pressure))
         sinks.append(Sink("relief", "relief valve", VAPOUR, tank.relief_set_pressure))
@@ -190,8 +202,9 @@ class _Voyage:
         outside the voyage are ignored.
         """
         end = self.scenario.duration
-        return sorted({float(m) for m in getattr(self.scenario, "mixing_times", ())
-                       if 0.0 <= float(m) < end})
+        return sorted(
+            {float(m) for m in getattr(self.scenario, "mixing_times", ()) if 0.0 <= float(m) < end}
+        )
 
     def apply_mixing(self, t: float, y, leg):
         """Mix the tank contents at time t [s]: the model's ``mix`` hook, and an event.
@@ -205,23 +218,35 @@ class _Voyage:
         before = self.evaluate(y, leg).pressure
         mix = getattr(self.model, "mix", None)
         if mix is None:
-            self.note(t, "mixing", "tank contents mixed (heavy weather or cargo pump); "
-                                   f"no effect on the {self.scenario.model} model")
+            self.note(
+                t,
+                "mixing",
+                "tank contents mixed (heavy weather or cargo pump); "
+                f"no effect on the {self.scenario.model} model",
+            )
             return y
         y = np.array(y, dtype=float)
         y[:n] = mix(y[:n])
         after = self.evaluate(y, leg).pressure
-        self.note(t, "mixing", "tank contents mixed (heavy weather or cargo pump): pressure "
-                               f"{pa_to_barg(before):.3f} -> {pa_to_barg(after):.3f} barg")
+        self.note(
+            t,
+            "mixing",
+            "tank contents mixed (heavy weather or cargo pump): pressure "
+            f"{pa_to_barg(before):.3f} -> {pa_to_barg(after):.3f} barg",
+        )
         return y
 
     # -- state evaluation -----------------------------------------------------
     def evaluate(self, y, leg):
-        key = (y[0], y[1], leg.air_temperature, leg.sea_temperature) if self.n_model == 2 else (
-            tuple(y[: self.n_model]), leg.air_temperature, leg.sea_temperature)
+        key = (
+            (y[0], y[1], leg.air_temperature, leg.sea_temperature)
+            if self.n_model == 2
+            else (tuple(y[: self.n_model]), leg.air_temperature, leg.sea_temperature)
+        )
         if key != self._cache_key:
-            self._cache_state = self.model.evaluate(y[: self.n_model], leg.air_temperature,
-                                                    leg.sea_temperature)
+            self._cache_state = self.model.evaluate(
+                y[: self.n_model], leg.air_temperature, leg.sea_temperature
+            )
             self._cache_key = key
         return self._cache_state
 
@@ -296,15 +321,24 @@ class _Voyage:
                     continue
                 p_set = sink.set_pressure
                 direction = -1 if k in mode.active else 1
-                make(lambda t, y, p_set=p_set: self.evaluate(y, leg).pressure - p_set,
-                     ("cross", k, direction), direction)
+                make(
+                    lambda t, y, p_set=p_set: self.evaluate(y, leg).pressure - p_set,
+                    ("cross", k, direction),
+                    direction,
+                )
         else:
             k = mode.holding
-            make(lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps),
-                 ("stop-draw", k), -1)
+            make(
+                lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps),
+                ("stop-draw", k),
+                -1,
+            )
             if math.isfinite(caps[k]):
-                make(lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps) - caps[k],
-                     ("over-capacity", k), 1)
+                make(
+                    lambda t, y: self.holding_rate(self.evaluate(y, leg), mode, caps) - caps[k],
+                    ("over-capacity", k),
+                    1,
+                )
         return funcs
 
     def describe(self, mode: Mode) -> str:
@@ -343,11 +377,17 @@ class _Voyage:
             if now == "hold":
                 self.note(t, "holding", f"{sink.label} holding {p_txt}")
             elif now == "full" and was == "hold":
-                self.note(t, "at-capacity",
-                          f"{sink.label} at full capacity, cannot hold {p_txt}; pressure rising")
+                self.note(
+                    t,
+                    "at-capacity",
+                    f"{sink.label} at full capacity, cannot hold {p_txt}; pressure rising",
+                )
             elif now == "full":
-                self.note(t, "at-capacity",
-                          f"{sink.label} starts at {p_txt} at full capacity; pressure still rising")
+                self.note(
+                    t,
+                    "at-capacity",
+                    f"{sink.label} starts at {p_txt} at full capacity; pressure still rising",
+                )
             elif t > 0.0:
                 self.note(t, "stopped-drawing", f"{sink.label} stops drawing at {p_txt}")
 
@@ -382,9 +422,12 @@ def simulate(scenario: Scenario, progress=None):
     rho_ref = table.at(table.temperature(tank.relief_set_pressure)).rho_liquid
     limit = loading_limit(rho_ref, rho_load)
     if tank.fill > limit + 1e-12:
-        voyage.note(0.0, "loading-limit-exceeded",
-                    f"initial fill {100 * tank.fill:.2f} % is above the IGC loading limit "
-                    f"{100 * limit:.2f} % for relief set {pa_to_barg(tank.relief_set_pressure):.3f} barg")
+        voyage.note(
+            0.0,
+            "loading-limit-exceeded",
+            f"initial fill {100 * tank.fill:.2f} % is above the IGC loading limit "
+            f"{100 * limit:.2f} % for relief set {pa_to_barg(tank.relief_set_pressure):.3f} barg",
+        )
 
     y = np.concatenate([model.initial_state(tank.fill, tank.pressure), np.zeros(5)])
     n = voyage.n_model
@@ -413,8 +456,12 @@ def simulate(scenario: Scenario, progress=None):
         t_next = breaks[bi + 1]
         leg = voyage.leg_at(t)
         if leg is not leg_started:
-            voyage.note(t, "leg", f"leg '{leg.name}' starts: air {leg.air_temperature - 273.15:.1f} degC, "
-                                  f"sea {leg.sea_temperature - 273.15:.1f} degC")
+            voyage.note(
+                t,
+                "leg",
+                f"leg '{leg.name}' starts: air {leg.air_temperature - 273.15:.1f} degC, "
+                f"sea {leg.sea_temperature - 273.15:.1f} degC",
+            )
             leg_started = leg
         mixed = False
         while mi < len(mix_times) and mix_times[mi] <= t * (1 + 1e-15) + 1e-9:
@@ -442,13 +489,24 @@ def simulate(scenario: Scenario, progress=None):
             out[:n] = d
             out[n] = st.heat_in
             out[n + 1] = r[voyage.index["fuel"]]
-            out[n + 2] = r[voyage.index["reliquefaction"]] if "reliquefaction" in voyage.index else 0.0
+            out[n + 2] = (
+                r[voyage.index["reliquefaction"]] if "reliquefaction" in voyage.index else 0.0
+            )
             out[n + 3] = r[voyage.index["oxidiser"]] if "oxidiser" in voyage.index else 0.0
             out[n + 4] = r[voyage.index["relief"]]
             return out
 
-        sol = solve_ivp(rhs, (t, t_next), y, method="RK45", rtol=RTOL, atol=atol,
-                        max_step=MAX_STEP, dense_output=True, events=[f for f, _ in funcs])
+        sol = solve_ivp(
+            rhs,
+            (t, t_next),
+            y,
+            method="RK45",
+            rtol=RTOL,
+            atol=atol,
+            max_step=MAX_STEP,
+            dense_output=True,
+            events=[f for f, _ in funcs],
+        )
         if sol.status == -1:
             status, message = "failed", f"integration failed at {t / 3600:.2f} h: {sol.message}"
             break
@@ -465,29 +523,45 @@ def simulate(scenario: Scenario, progress=None):
             old = mode
             kind = tag[0]
             if kind == "liquid-full":
-                voyage.note(t_end, "liquid-full", "tank liquid-full: no vapour space left "
-                            "(hydraulic overpressure hazard); run stopped")
+                voyage.note(
+                    t_end,
+                    "liquid-full",
+                    "tank liquid-full: no vapour space left "
+                    "(hydraulic overpressure hazard); run stopped",
+                )
                 status, message, stop = "stopped", "tank became liquid-full", True
             elif kind == "low-limit":
                 if table.temperature_min <= table.temperature_triple * (1 + 1e-6):
-                    voyage.note(t_end, "triple-point",
-                                f"pressure fell to the triple-point pressure "
-                                f"({pa_to_barg(table.pressure_triple):.2f} barg): solid cargo "
-                                "would form; run stopped")
+                    voyage.note(
+                        t_end,
+                        "triple-point",
+                        f"pressure fell to the triple-point pressure "
+                        f"({pa_to_barg(table.pressure_triple):.2f} barg): solid cargo "
+                        "would form; run stopped",
+                    )
                     message = "pressure fell to the triple point"
                 else:
-                    voyage.note(t_end, "low-pressure-limit",
-                                f"pressure fell to {pa_to_barg(table.pressure_min):.3f} barg, "
-                                "the lowest the property tables cover; run stopped")
+                    voyage.note(
+                        t_end,
+                        "low-pressure-limit",
+                        f"pressure fell to {pa_to_barg(table.pressure_min):.3f} barg, "
+                        "the lowest the property tables cover; run stopped",
+                    )
                     message = "pressure fell below the modelled range"
                 status, stop = "stopped", True
             elif kind == "high-limit":
-                voyage.note(t_end, "near-critical",
-                            "cargo within 0.4 % of its critical temperature; run stopped")
+                voyage.note(
+                    t_end,
+                    "near-critical",
+                    "cargo within 0.4 % of its critical temperature; run stopped",
+                )
                 status, message, stop = "stopped", "cargo approached its critical point", True
             elif kind == "vacuum":
-                voyage.note(t_end, "vacuum", f"pressure below the vacuum limit "
-                            f"{pa_to_barg(tank.vacuum_pressure):.3f} barg")
+                voyage.note(
+                    t_end,
+                    "vacuum",
+                    f"pressure below the vacuum limit {pa_to_barg(tank.vacuum_pressure):.3f} barg",
+                )
                 watch_vacuum = False
             elif kind == "cross":
                 mode = voyage.choose_mode(state, caps)
@@ -514,10 +588,18 @@ def simulate(scenario: Scenario, progress=None):
 
 _OUTAGE_WORDS = {
     "fuel": ("fuel-stop", "engines stop taking gas", "fuel-resume", "engines take gas again"),
-    "reliquefaction": ("plant-trip", "reliquefaction plant trips", "plant-restore",
-                       "reliquefaction plant back in service"),
-    "oxidiser": ("oxidiser-trip", "oxidiser out of service", "oxidiser-restore",
-                 "oxidiser back in service"),
+    "reliquefaction": (
+        "plant-trip",
+        "reliquefaction plant trips",
+        "plant-restore",
+        "reliquefaction plant back in service",
+    ),
+    "oxidiser": (
+        "oxidiser-trip",
+        "oxidiser out of service",
+        "oxidiser-restore",
+        "oxidiser back in service",
+    ),
 }
 
 

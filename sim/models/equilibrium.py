@@ -101,8 +101,9 @@ class EquilibriumModel:
     name = "equilibrium"
     state_names = ("cargo_mass", "internal_energy")
 
-    def __init__(self, table: SaturationTable, volume: float, ua_air: float, ua_sea: float,
-                 shape=None):
+    def __init__(
+        self, table: SaturationTable, volume: float, ua_air: float, ua_sea: float, shape=None
+    ):
         self.table = table
         self.volume = volume
         self.ua_air = ua_air
@@ -207,8 +208,16 @@ class EquilibriumModel:
         vapour = (self.volume - mass * v_l) / dv
         liquid = mass - vapour
         heat = self.ua_air * (air_temperature - temp) + self.ua_sea * (sea_temperature - temp)
-        return TankState(pressure, temp, temp, liquid * v_l / self.volume, liquid, vapour, heat,
-                         (mass, v, s, v_l, v_v, dv))
+        return TankState(
+            pressure,
+            temp,
+            temp,
+            liquid * v_l / self.volume,
+            liquid,
+            vapour,
+            heat,
+            (mass, v, s, v_l, v_v, dv),
+        )
 
     def pressure_rate_coefficients(self, state: TankState) -> tuple[float, float, float]:
         """Coefficients of dp/dt = a0 - b_out*m_out - b_rl*m_rl.
