@@ -241,10 +241,27 @@ def _summary(voyage, frame, events, final_y, status, message, t_final, specific_
         "heat_in_mwh": heat_j * count / J_PER_KWH / 1000.0,
         "mean_heat_in_kw": heat_j * count / t_final / 1000.0 if t_final > 0 else 0.0,
         "reliquefaction_energy_kwh": reliq * count * specific_power / J_PER_KWH,
+        "legs": _legs(scenario),
         "events": [e.as_dict() for e in events],
         "model_warnings": list(getattr(voyage.model, "warnings", [])),
         "caution": CAUTION,
     }
+
+
+def _legs(scenario) -> list[dict]:
+    """The voyage legs as data: name, start and end [h], ambient [degC], fuel [kg/h]."""
+    out, start = [], 0.0
+    for leg in scenario.legs:
+        out.append({
+            "name": leg.name,
+            "start_h": start / SECONDS_PER_HOUR,
+            "end_h": (start + leg.duration) / SECONDS_PER_HOUR,
+            "air_c": leg.air_temperature - T_ZERO_C,
+            "sea_c": leg.sea_temperature - T_ZERO_C,
+            "fuel_kg_h": leg.fuel_demand * SECONDS_PER_HOUR,
+        })
+        start += leg.duration
+    return out
 
 
 def json_safe(value):

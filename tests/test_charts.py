@@ -187,3 +187,17 @@ def test_png_export_where_kaleido_and_chromium_exist(closed):
     fig = charts.pressure_figure([("run", result)], charts.control_levels(data))
     png = exports.chart_png(fig, width=600, height=300)
     assert png[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_leg_names_come_from_the_summary_legs(closed):
+    data, result = closed
+    legs = result.summary["legs"]
+    # the summary's legs are the scenario's, in order, end to end
+    assert [leg["name"] for leg in legs] == [leg.name for leg in parse_scenario(data).legs]
+    assert legs[0]["start_h"] == 0.0
+    assert legs[-1]["end_h"] == pytest.approx(sum(leg["days"] for leg in data["leg"]) * 24.0)
+    for a, b in zip(legs, legs[1:]):
+        assert a["end_h"] == pytest.approx(b["start_h"])
+    fig = charts.pressure_figure([("run", result)])
+    names = {a.text for a in fig.layout.annotations}
+    assert {leg["name"] for leg in legs} <= names

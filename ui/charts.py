@@ -166,16 +166,17 @@ def _add_bands(fig: go.Figure, result: VoyageResult) -> None:
 
 
 def _add_leg_marks(fig: go.Figure, result: VoyageResult) -> None:
-    legs = [e for e in result.events if e.kind == "leg"]
+    """Dotted lines at leg changes, leg names along the bottom (from the summary's legs)."""
+    legs = [leg for leg in result.summary.get("legs", [])
+            if leg["start_h"] <= result.summary.get("simulated_days", 0.0) * 24.0]
     if len(legs) < 2:
         return
-    for i, event in enumerate(legs):
+    for i, leg in enumerate(legs):
+        day = leg["start_h"] / 24.0
         if i:
-            fig.add_vline(x=event.time / 86400.0,
-                          line={"color": "#b8c2c9", "width": 1, "dash": "dot"})
-        name = event.detail.split("'")[1] if event.detail.count("'") >= 2 else ""
-        fig.add_annotation(x=event.time / 86400.0, y=0.0, xref="x", yref="paper",
-                           text=name, showarrow=False, xanchor="left", yanchor="bottom",
+            fig.add_vline(x=day, line={"color": "#b8c2c9", "width": 1, "dash": "dot"})
+        fig.add_annotation(x=day, y=0.0, xref="x", yref="paper",
+                           text=leg["name"], showarrow=False, xanchor="left", yanchor="bottom",
                            xshift=3, font={"size": 10, "color": "#7d8b96"})
 
 
