@@ -74,6 +74,9 @@ class Leg:
     sea_temperature : float  [K]
     fuel_demand : float
         Gas the engines will take from the tanks, whole ship [kg/s].
+    start_fill : float or None
+        Port call at the start of the leg: cargo is discharged (or loaded) to
+        this liquid fraction of tank volume [-]; None: no port call.
     """
 
     name: str
@@ -81,6 +84,7 @@ class Leg:
     air_temperature: float
     sea_temperature: float
     fuel_demand: float = 0.0
+    start_fill: float | None = None
 
 
 @dataclass(frozen=True)
@@ -392,6 +396,9 @@ SCHEMA: dict[str, dict[str, KeySpec]] = {
         KeySpec("sea_c", "sea temperature in degC", required=True, **_SEA),
         KeySpec("fuel_kg_h", "gas the engines take from the tanks, kg/h, whole ship",
                 default=0.0, **_RATE),
+        KeySpec("start_fill_pct", "port call at the start of the leg: discharge (or load) to "
+                "this fill, percent of tank volume; the heel is what stays on board",
+                **_PERCENT_OPEN),
     ),
     "reliquefaction": _specs(
         KeySpec("capacity_kg_h", "vapour the plant can condense, kg/h, whole ship",
@@ -1011,8 +1018,8 @@ def _parse_legs(check: _Checker, data: dict) -> list[Leg | None] | None:
             continue
         check.unknown_keys(item, prefix, "leg")
         v = {key: check.value(item, prefix, s) for key, s in spec.items()}
-        if any(v[k] is None for k in ("days", "air_c", "sea_c", "fuel_kg_h")) or (
-                "name" in item and v["name"] is None):
+        if any(v[k] is None for k in ("days", "air_c", "sea_c", "fuel_kg_h")) or any(
+                k in item and v[k] is None for k in ("name", "start_fill_pct")):
             legs.append(None)
             continue
         legs.append(Leg(
@@ -1021,6 +1028,7 @@ def _parse_legs(check: _Checker, data: dict) -> list[Leg | None] | None:
             air_temperature=c_to_k(v["air_c"]),
             sea_temperature=c_to_k(v["sea_c"]),
             fuel_demand=kg_h_to_kg_s(v["fuel_kg_h"]),
+            start_fill=None if v["start_fill_pct"] is None else v["start_fill_pct"] / 100.0,
         ))
     return legs
 

@@ -51,6 +51,9 @@ MAX_STEP = 12 * 3600.0
 RTOL = 1e-8
 #: Relative band around a set pressure treated as "at the set pressure".
 AT_SET_TOLERANCE = 1e-7
+#: Liquid fraction below which the heel counts as exhausted [-]: the tank
+#: model needs liquid to stay saturated.
+HEEL_EMPTY_FILL = 1e-4
 #: Segment-count guard against a control loop that fails to settle.
 MAX_SEGMENTS = 20_000
 
@@ -138,6 +141,8 @@ class _Voyage:
         self.events: list[Event] = []
         self.relief_open = False
         self.rhs_calls = 0
+        self.delivered_t = 0.0
+        self.loaded_t = 0.0
 
     # -- capacities and ambient ---------------------------------------------
     def leg_at(self, t: float):
@@ -205,6 +210,33 @@ class _Voyage:
         return sorted(
             {float(m) for m in getattr(self.scenario, "mixing_times", ()) if 0.0 <= float(m) < end}
         )
+
+    def port_call(self, t: float, y, leg):
+        """Discharge (or load) to the leg's start fill at the current pressure, and note it.
+
+        The cargo left on board is saturated at the tank pressure at the new
+        fill (for a stratified model, mixed). Discharged cargo counts as
+        delivered, loaded cargo as loaded; neither is boil-off.
+        """
+        from .units import pa_to_barg
+
+        n = self.n_model
+        state = self.evaluate(y, leg)
+        y = np.array(y, dtype=float)
+        before = state.cargo_mass
+        y[:n] = self.model.initial_state(leg.start_fill, state.pressure)
+        self._cache_key = None
+        after = float(self.evaluate(y, leg).cargo_mass)
+        moved = (before - after) * self.count / 1000.0
+        if moved >= 0.0:
+            self.delivered_t += moved
+            words = f"discharged {moved:.1f} t"
+        else:
+            self.loaded_t -= moved
+            words = f"loaded {-moved:.1f} t"
+        self.note(t, "port-call", f"port call: {words} to fill {100 * leg.start_fill:.2f} % at "
+                  f"{pa_to_barg(state.pressure):.3f} barg")
+        return y
 
     def apply_mixing(self, t: float, y, leg):
         """Mix the tank contents at time t [s]: the model's ``mix`` hook, and an event.
@@ -308,6 +340,7 @@ class _Voyage:
             funcs.append((fn, tag))
 
         make(lambda t, y: self.evaluate(y, leg).fill - 1.0, ("liquid-full",), 1)
+        make(lambda t, y: self.evaluate(y, leg).fill - HEEL_EMPTY_FILL, ("heel-exhausted",), -1)
         low = table.temperature_min * (1.0 + 1e-9)
         high = table.temperature_max * (1.0 - 1e-9)
         make(lambda t, y: self.evaluate(y, leg).liquid_temperature - low, ("low-limit",), -1)
@@ -463,6 +496,9 @@ def simulate(scenario: Scenario, progress=None):
                 f"sea {leg.sea_temperature - 273.15:.1f} degC",
             )
             leg_started = leg
+            if leg.start_fill is not None and t > 0.0:
+                y = voyage.port_call(t, y, leg)
+                mode = None  # a new cargo state: choose the control mode afresh
         mixed = False
         while mi < len(mix_times) and mix_times[mi] <= t * (1 + 1e-15) + 1e-9:
             y = voyage.apply_mixing(t, y, leg)
@@ -522,7 +558,15 @@ def simulate(scenario: Scenario, progress=None):
             state = voyage.evaluate(y, leg)
             old = mode
             kind = tag[0]
-            if kind == "liquid-full":
+            if kind == "heel-exhausted":
+                voyage.note(
+                    t_end,
+                    "heel-exhausted",
+                    f"heel exhausted on day {t_end / 86400:.2f}: no liquid left to keep the "
+                    "tank cold; run stopped",
+                )
+                status, message, stop = "stopped", "heel exhausted", True
+            elif kind == "liquid-full":
                 voyage.note(
                     t_end,
                     "liquid-full",

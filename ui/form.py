@@ -174,6 +174,9 @@ LEG_COLUMNS = {
     "air_c": ("Air °C", "Air temperature during the leg."),
     "sea_c": ("Sea °C", "Sea temperature during the leg."),
     "fuel_kg_h": ("Fuel gas kg/h", "Gas the engines take from the tanks, whole ship."),
+    "start_fill_pct": ("Port call: fill %", "Optional port call at the start of the leg: "
+                       "discharge (or load) to this fill, % of tank volume; the heel is what "
+                       "stays on board for a ballast leg. Empty: no port call."),
 }
 
 #: Plant that can have outage windows -> words for the outage table.
@@ -201,10 +204,11 @@ def legs_frame(legs: list[dict] | None) -> pd.DataFrame:
             "air_c": _number_or_none(leg.get("air_c")),
             "sea_c": _number_or_none(leg.get("sea_c")),
             "fuel_kg_h": _number_or_none(leg.get("fuel_kg_h", SCHEMA["leg"]["fuel_kg_h"].default)),
+            "start_fill_pct": _number_or_none(leg.get("start_fill_pct")),
         })
     frame = pd.DataFrame(rows, columns=list(LEG_COLUMNS))
     frame["name"] = frame["name"].astype(object)
-    for col in ("days", "air_c", "sea_c", "fuel_kg_h"):
+    for col in ("days", "air_c", "sea_c", "fuel_kg_h", "start_fill_pct"):
         frame[col] = frame[col].astype(float)
     return frame
 
