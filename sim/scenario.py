@@ -22,6 +22,7 @@ import tomli_w
 
 from . import CAUTION
 from .cargo import CATALOGUE, SaturationTable, saturation_table
+from .errors import InputError
 from .geometry import DEFAULT_HEADS, HEAD_TYPES, SHAPES, make_shape
 from .models import DEFAULT_MODEL, MODELS
 from .units import (
@@ -37,7 +38,7 @@ from .units import (
 )
 
 
-class ScenarioError(ValueError):
+class ScenarioError(InputError):
     """Invalid scenario: one message per problem, each naming key, value and what is allowed.
 
     Attributes
@@ -46,20 +47,6 @@ class ScenarioError(ValueError):
         One line per problem, e.g. ``"tank.fill_pct = 120: must be above 0
         and below 100 (percent of tank volume)"``.
     """
-
-    def __init__(self, problems: list[str] | str, source: str = ""):
-        if isinstance(problems, str):
-            problems = [problems]
-        self.problems = list(problems)
-        self.source = source
-        head = f"{source}: " if source else ""
-        if len(self.problems) == 1:
-            text = head + self.problems[0]
-        else:
-            text = head + f"{len(self.problems)} problems:\n" + "\n".join(
-                f"  - {p}" for p in self.problems
-            )
-        super().__init__(text)
 
 
 @dataclass(frozen=True)

@@ -85,6 +85,7 @@ from typing import Any
 import numpy as np
 
 from . import CAUTION
+from .errors import InputError
 from .units import (
     P_ATM,
     SECONDS_PER_DAY,
@@ -106,21 +107,8 @@ CAPACITY_TOLERANCE = 1e-3
 MAX_DOUBLINGS = 12
 
 
-class SizingError(ValueError):
-    """Bad sizing input: each problem names the option, the value and what is allowed.
-
-    Attributes
-    ----------
-    problems : list[str]
-    """
-
-    def __init__(self, problems: list[str] | str):
-        if isinstance(problems, str):
-            problems = [problems]
-        self.problems = list(problems)
-        text = self.problems[0] if len(self.problems) == 1 else (
-            f"{len(self.problems)} problems:\n" + "\n".join(f"  - {p}" for p in self.problems))
-        super().__init__(text)
+class SizingError(InputError):
+    """Bad sizing input: each problem names the option, the value and what is allowed."""
 
 
 # ---------------------------------------------------------------------------

@@ -42,6 +42,7 @@ from typing import Any
 import numpy as np
 
 from . import CAUTION, __version__
+from .errors import InputError
 from .results import json_safe
 
 #: Largest number of cases one sweep may have (a guard against a typo such as
@@ -67,24 +68,8 @@ class ClusterError(RuntimeError):
     """A Dask cluster was reached but could not run the cases (e.g. ``sim`` missing there)."""
 
 
-class SweepError(ValueError):
-    """Bad sweep input: each problem names the option, key, value and what is allowed.
-
-    Attributes
-    ----------
-    problems : list[str]
-    """
-
-    def __init__(self, problems: list[str] | str):
-        if isinstance(problems, str):
-            problems = [problems]
-        self.problems = list(problems)
-        if len(self.problems) == 1:
-            text = self.problems[0]
-        else:
-            text = f"{len(self.problems)} problems:\n" + "\n".join(
-                f"  - {p}" for p in self.problems)
-        super().__init__(text)
+class SweepError(InputError):
+    """Bad sweep input: each problem names the option, key, value and what is allowed."""
 
 
 # ---------------------------------------------------------------------------

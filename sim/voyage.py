@@ -58,6 +58,9 @@ HEEL_EMPTY_FILL = 1e-4
 MAX_SEGMENTS = 20_000
 
 VAPOUR, RELIQUEFY = "vapour", "reliquefy"
+#: Order of the per-sink accumulated masses in the state vector (after the
+#: model state and the accumulated heat); results read them in this order.
+SINK_KEYS = ("fuel", "reliquefaction", "oxidiser", "relief")
 
 
 @dataclass(frozen=True)
@@ -234,8 +237,12 @@ class _Voyage:
         else:
             self.loaded_t -= moved
             words = f"loaded {-moved:.1f} t"
-        self.note(t, "port-call", f"port call: {words} to fill {100 * leg.start_fill:.2f} % at "
-                  f"{pa_to_barg(state.pressure):.3f} barg")
+        self.note(
+            t,
+            "port-call",
+            f"port call: {words} to fill {100 * leg.start_fill:.2f} % at "
+            f"{pa_to_barg(state.pressure):.3f} barg",
+        )
         return y
 
     def apply_mixing(self, t: float, y, leg):
@@ -515,7 +522,10 @@ def simulate(scenario: Scenario, progress=None):
 
         funcs = voyage.event_functions(mode, caps, leg, watch_vacuum)
 
-        def rhs(t_, y_, mode=mode, caps=caps, leg=leg):
+        # accumulated mass per sink, after the heat: fuel, reliquefied, oxidised, vented
+        slots = [(n + 1 + SINK_KEYS.index(sink.key), k) for k, sink in enumerate(voyage.sinks)]
+
+        def rhs(t_, y_, mode=mode, caps=caps, leg=leg, slots=slots):
             voyage.rhs_calls += 1
             st = voyage.evaluate(y_, leg)
             r = voyage.rates(st, mode, caps)
@@ -524,12 +534,9 @@ def simulate(scenario: Scenario, progress=None):
             out = np.empty(len(y_))
             out[:n] = d
             out[n] = st.heat_in
-            out[n + 1] = r[voyage.index["fuel"]]
-            out[n + 2] = (
-                r[voyage.index["reliquefaction"]] if "reliquefaction" in voyage.index else 0.0
-            )
-            out[n + 3] = r[voyage.index["oxidiser"]] if "oxidiser" in voyage.index else 0.0
-            out[n + 4] = r[voyage.index["relief"]]
+            out[n + 1 :] = 0.0
+            for slot, k in slots:
+                out[slot] = r[k]
             return out
 
         sol = solve_ivp(
