@@ -100,8 +100,8 @@ def _run_direct(scenario, flash_inversion: bool):
     from . import voyage as voyage_mod
     from .models.equilibrium import EquilibriumModel
 
-    real_table = voyage_mod.saturation_table
-    direct = DirectSaturation(real_table(scenario.cargo))
+    real_table = voyage_mod.cargo_table
+    direct = DirectSaturation(real_table(scenario))
     original = EquilibriumModel._temperature
 
     def flash_temperature(self, mass, energy):
@@ -113,7 +113,7 @@ def _run_direct(scenario, flash_inversion: bool):
         v, s = direct.raw(temp)
         return temp, v, s
 
-    voyage_mod.saturation_table = lambda name: direct
+    voyage_mod.cargo_table = lambda scenario: direct
     if flash_inversion:
         EquilibriumModel._temperature = flash_temperature
     try:
@@ -121,7 +121,7 @@ def _run_direct(scenario, flash_inversion: bool):
         result = voyage_mod.simulate(scenario)
         return time.perf_counter() - t0, result
     finally:
-        voyage_mod.saturation_table = real_table
+        voyage_mod.cargo_table = real_table
         EquilibriumModel._temperature = original
 
 

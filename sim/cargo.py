@@ -72,6 +72,8 @@ _ENTRIES = [
     CargoInfo("n-butane", "n-Butane", "n-Butane", "C4H10"),
     CargoInfo("isobutane", "IsoButane", "Isobutane", "C4H10"),
     CargoInfo("1-butene", "1-Butene", "1-Butene", "C4H8"),
+    CargoInfo("n-pentane", "n-Pentane", "n-Pentane", "C5H12", "natural-gasoline component"),
+    CargoInfo("isopentane", "Isopentane", "Isopentane", "C5H12", "natural-gasoline component"),
     CargoInfo("ammonia", "Ammonia", "Ammonia", "NH3"),
     CargoInfo(
         "carbon-dioxide",
@@ -192,6 +194,33 @@ class SaturationTable:
         temps[0], temps[-1] = t_low, t_high
 
         values = np.array([_coolprop_row(state, t) for t in temps])
+        self._fit(temps, values)
+
+    @classmethod
+    def from_values(
+        cls,
+        cargo: CargoInfo,
+        temperatures: np.ndarray,
+        values: np.ndarray,
+        *,
+        molar_mass: float,
+        temperature_critical: float,
+        pressure_critical: float,
+        temperature_triple: float,
+        pressure_triple: float,
+    ) -> SaturationTable:
+        """A table from given rows (columns as :meth:`raw`), e.g. a mixture's bubble curve."""
+        self = cls.__new__(cls)
+        self.cargo = cargo
+        self.molar_mass = molar_mass
+        self.temperature_critical = temperature_critical
+        self.pressure_critical = pressure_critical
+        self.temperature_triple = temperature_triple
+        self.pressure_triple = pressure_triple
+        self._fit(np.asarray(temperatures, dtype=float), np.asarray(values, dtype=float))
+        return self
+
+    def _fit(self, temps: np.ndarray, values: np.ndarray) -> None:
         self.temperature_min = float(temps[0])
         self.temperature_max = float(temps[-1])
         self.pressure_min = float(math.exp(values[0, 0]))

@@ -19,6 +19,12 @@ import pandas as pd
 from . import CAUTION
 from .units import J_PER_KWH, SECONDS_PER_DAY, SECONDS_PER_HOUR, T_ZERO_C, pa_to_barg
 
+#: Pressure-control sinks in the order of their accumulators in the state vector.
+SINK_KEYS = ("fuel", "reliquefaction", "oxidiser", "relief")
+#: Accumulators after the model state: heat in [J], mass per sink [kg] (in
+#: SINK_KEYS order), gross heating value carried by each sink's vapour [J].
+ACCUMULATORS = 1 + 2 * len(SINK_KEYS)
+
 #: Time-series columns always present, in order, with their meaning.
 TIMESERIES_COLUMNS = {
     "time_h": "time from voyage start [h]",
@@ -41,7 +47,12 @@ TIMESERIES_COLUMNS = {
     "vented_kg_h": "vapour released by the relief valves [kg/h]",
     "reliquefaction_power_kw": "electrical power of the reliquefaction plant [kW]",
     "cargo_loss_t": "cargo lost since the start (fuel + oxidiser + vented) [t]",
+    "liquid_density_kg_m3": "density of the liquid [kg/m3]",
+    "energy_lost_gj": "gross heating value of the cargo lost since the start [GJ]",
 }
+#: Composition columns follow, one pair per cargo component ``c``:
+#: ``x_<c>`` liquid mole fraction [-] and ``y_<c>`` boil-off (equilibrium
+#: vapour) mole fraction [-].
 
 
 @dataclass(frozen=True)
@@ -131,16 +142,21 @@ def build_result(voyage, segments, status: str, message: str, t_final: float) ->
     # Each sample belongs to the segment that ends at or after it.
     ends = np.array([seg[1] for seg in segments])
     owner = np.minimum(np.searchsorted(ends, times, side="left"), len(segments) - 1)
-    for si, (t0, t1, sol, mode, caps, leg) in enumerate(segments):
+    use = getattr(voyage.model, "use", None)
+    for si, (t0, t1, sol, mode, caps, leg, context) in enumerate(segments):
         ts = times[owner == si]
         if ts.size == 0:
             continue
+        if use is not None:
+            use(context)
         y = np.atleast_2d(sol(np.clip(ts, t0, t1)))
-        if y.shape[0] != n + 5:
+        if y.shape[0] != n + ACCUMULATORS:
             y = y.T
         blocks.append(_columns(voyage, ts, y, mode, caps, leg, specific_power))
         final_y = y[:, -1]
     frame = pd.DataFrame({k: np.concatenate([b[k] for b in blocks]) for k in blocks[0]})
+    if use is not None:
+        use(segments[-1][6])
     events = sorted(voyage.events, key=lambda e: e.time)
     summary = _summary(voyage, frame, events, final_y, status, message, t_final, specific_power)
     return VoyageResult(
@@ -185,7 +201,35 @@ def _columns(voyage, ts, y, mode, caps, leg, specific_power) -> dict:
         "vented_kg_h": per_hour("relief"),
         "reliquefaction_power_kw": reliq / SECONDS_PER_HOUR * specific_power / 1000.0,
         "cargo_loss_t": (y[n + 1] + y[n + 3] + y[n + 4]) * count / 1000.0,
+        "liquid_density_kg_m3": np.divide(
+            state.liquid_mass, fill * voyage.volume,
+            out=np.full(ts.shape, np.nan), where=fill * voyage.volume > 0),
+        "energy_lost_gj": _energy_lost(y, n) * count / 1e9,
+        **_composition_columns(voyage, state, ts.shape),
     }
+
+
+def _energy_lost(y, n):
+    """Gross heating value lost per tank: fuel + oxidiser + relief accumulators [J]."""
+    e = n + 1 + len(SINK_KEYS)
+    return y[e] + y[e + 2] + y[e + 3]
+
+
+def _components(voyage) -> list[str]:
+    sc = voyage.scenario
+    return [c for c, _ in sc.mole_fractions] if sc.mole_fractions is not None else [sc.cargo]
+
+
+def _composition_columns(voyage, state, shape) -> dict:
+    names = _components(voyage)
+    if state.liquid_fractions is None:
+        ones = np.ones(shape)
+        return {f"x_{names[0]}": ones, f"y_{names[0]}": ones}
+    x = np.atleast_2d(state.liquid_fractions)
+    yv = np.atleast_2d(state.vapour_fractions)
+    out = {f"x_{c}": x[i] for i, c in enumerate(names)}
+    out.update({f"y_{c}": yv[i] for i, c in enumerate(names)})
+    return out
 
 
 def _summary(voyage, frame, events, final_y, status, message, t_final, specific_power) -> dict:
@@ -247,7 +291,68 @@ def _summary(voyage, frame, events, final_y, status, message, t_final, specific_
         "legs": _legs(scenario),
         "events": [e.as_dict() for e in events],
         "model_warnings": list(getattr(voyage.model, "warnings", [])),
+        **_commercial(voyage, frame, final_y, fuel + oxid + vent),
         "caution": CAUTION,
+    }
+
+
+def _commercial(voyage, frame, final_y, lost_kg) -> dict:
+    """Composition, quality, energy and value figures of the summary."""
+    from .energy import REFERENCE_TEXT, mmbtu, quality
+
+    scenario = voyage.scenario
+    count, n = voyage.count, voyage.n_model
+    names = _components(voyage)
+    first, last = frame.iloc[0], frame.iloc[-1]
+    start = {c: float(first[f"x_{c}"]) for c in names}
+    arrival = {c: float(last[f"x_{c}"]) for c in names}
+    # boil-off composition, mean over the voyage weighted by moles drawn off
+    masses = np.array([voyage.model_molar_mass(c) for c in names])
+    ys = np.array([frame[f"y_{c}"].to_numpy(dtype=float) for c in names])
+    molar_rate = frame["boil_off_kg_h"].to_numpy(dtype=float) / (masses @ ys)
+    hours = frame["time_h"].to_numpy(dtype=float)
+    weights = np.trapezoid(ys * molar_rate, hours, axis=1) if hours.size > 1 else np.zeros(len(names))
+    bog_mean = ({c: float(w / weights.sum()) for c, w in zip(names, weights, strict=True)}
+                if weights.sum() > 0 else None)
+    q_start, q_arrival = quality(start), quality(arrival)
+    has_energy = voyage.gross_molar is not None
+    e = n + 1 + len(SINK_KEYS)
+    by_sink = {k: float(final_y[e + i]) * count for i, k in enumerate(SINK_KEYS)}
+    lost = by_sink["fuel"] + by_sink["oxidiser"] + by_sink["relief"]
+    on_board_end = voyage.cargo_energy(final_y, voyage.evaluate(final_y, scenario.legs[-1])) * count
+    loaded = voyage.energy_loaded_start + voyage.loaded_energy
+    delivered = voyage.delivered_energy if voyage.delivered_t > 0 else on_board_end
+
+    def energy(value):
+        return value / 1e9 if has_energy else None
+
+    value_lost, basis = None, None
+    if scenario.price_per_mmbtu is not None and has_energy:
+        value_lost, basis = scenario.price_per_mmbtu * mmbtu(lost), "per MMBtu (gross)"
+    elif scenario.price_per_tonne is not None:
+        value_lost, basis = scenario.price_per_tonne * lost_kg * count / 1000.0, "per tonne"
+    return {
+        "initial_composition": start,
+        "arrival_composition": arrival,
+        "bog_composition_mean": bog_mean,
+        "quality_start": q_start,
+        "quality_arrival": q_arrival,
+        "gcv_start_mj_kg": q_start["gcv_mj_kg"] if q_start else None,
+        "gcv_arrival_mj_kg": q_arrival["gcv_mj_kg"] if q_arrival else None,
+        "energy_loaded_gj": energy(loaded),
+        "energy_lost_gj": energy(lost),
+        "energy_lost_by_sink_gj": ({"fuel": by_sink["fuel"] / 1e9,
+                                    "oxidiser": by_sink["oxidiser"] / 1e9,
+                                    "vented": by_sink["relief"] / 1e9} if has_energy else None),
+        "energy_reliquefied_gj": energy(by_sink["reliquefaction"]),
+        "energy_delivered_gj": energy(delivered),
+        "energy_on_board_end_gj": energy(on_board_end),
+        "energy_loaded_mmbtu": mmbtu(loaded) if has_energy else None,
+        "energy_lost_mmbtu": mmbtu(lost) if has_energy else None,
+        "energy_delivered_mmbtu": mmbtu(delivered) if has_energy else None,
+        "energy_reference": REFERENCE_TEXT if has_energy else None,
+        "value_lost": value_lost,
+        "value_lost_basis": basis,
     }
 
 

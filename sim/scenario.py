@@ -181,7 +181,7 @@ class Scenario:
     ----------
     title : str
     model : str  name in :data:`sim.models.MODELS`
-    cargo : str  name in :data:`sim.cargo.CATALOGUE`
+    cargo : str  name in :data:`sim.cargo.CATALOGUE`, or a mixture's label
     tank : TankSpec
     insulation : Insulation
     legs : tuple[Leg, ...]
@@ -194,6 +194,12 @@ class Scenario:
     mixing_times : tuple[float, ...]
         Times the liquid is mixed (heavy weather, cargo pump) [s]; acts on
         tank models with a stratified liquid.
+    mole_fractions : tuple of (component, mole fraction) or None
+        Liquid composition of a mixture cargo as loaded [-], None for a pure
+        cargo (then ``cargo`` is the catalogue name; for a mixture it is the
+        label).
+    price_per_mmbtu, price_per_tonne : float or None
+        Cargo price for the value of cargo lost (any currency).
     raw : dict
         The scenario as written (trade units), for saving it back.
     """
@@ -209,6 +215,9 @@ class Scenario:
     fuel_floor_pressure: float
     fuel_outages: tuple[Outage, ...] = ()
     mixing_times: tuple[float, ...] = ()
+    mole_fractions: tuple[tuple[str, float], ...] | None = None
+    price_per_mmbtu: float | None = None
+    price_per_tonne: float | None = None
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
@@ -342,7 +351,13 @@ SCHEMA: dict[str, dict[str, KeySpec]] = {
         KeySpec("model", "tank model name", kind="choice", default=DEFAULT_MODEL),
     ),
     "cargo": _specs(
-        KeySpec("fluid", "cargo name from the catalogue", kind="choice", required=True),
+        KeySpec("fluid", "cargo name from the catalogue (or give [cargo.mole_fractions])",
+                kind="choice"),
+        KeySpec("label", "name shown for a mixture cargo", kind="string"),
+        KeySpec("price_per_mmbtu", "cargo price per MMBtu (gross), any currency, for the "
+                "value of cargo lost", low=0.0, low_included=True, unit="per MMBtu"),
+        KeySpec("price_per_tonne", "cargo price per tonne, any currency, for the value of "
+                "cargo lost", low=0.0, low_included=True, unit="per tonne"),
     ),
     "tank": _specs(
         KeySpec("shape", "tank shape name", kind="choice", required=True),
@@ -426,6 +441,7 @@ _SUBTABLES: dict[str, dict[str, tuple[str, str]]] = {
         "fuel": ("table", "fuel gas settings"),
         "mixing": ("array", "times the liquid is mixed"),
     },
+    "cargo": {"mole_fractions": ("table", "mole fractions of a mixture cargo")},
     "reliquefaction": {"outage": ("array", "plant outages")},
     "oxidiser": {"outage": ("array", "oxidiser outages")},
     "fuel": {"outage": ("array", "windows in which the engines take no gas")},
@@ -814,15 +830,7 @@ def parse_scenario(data: dict, source: str = "") -> Scenario:
     model = check.choice(data, "", top["model"], MODELS, "model")
 
     # -- cargo ---------------------------------------------------------------
-    fluid = None
-    cargo = check.table(data, "cargo", "", required=True)
-    if cargo is not None:
-        check.unknown_keys(cargo, "cargo", "cargo")
-        # No spelling guesses for cargoes: a near name is a different chemical.
-        fluid = check.choice(cargo, "cargo", SCHEMA["cargo"]["fluid"], CATALOGUE, "cargo",
-                             aliases=_CARGO_ALIASES, fuzzy=False)
-    table = saturation_table(fluid) if fluid is not None else None
-
+    fluid, fractions, table, prices = _parse_cargo(check, data, model)
     tank_spec, tank_values = _parse_tank(check, data, table)
     insulation = _parse_insulation(check, data)
     legs = _parse_legs(check, data)
@@ -850,8 +858,114 @@ def parse_scenario(data: dict, source: str = "") -> Scenario:
         fuel_floor_pressure=fuel_floor,
         fuel_outages=fuel_outages,
         mixing_times=mixing_times,
+        mole_fractions=fractions,
+        price_per_mmbtu=prices[0],
+        price_per_tonne=prices[1],
         raw=copy.deepcopy(data),
     )
+
+
+#: Components a mixture cargo may list under [cargo.mole_fractions].
+MIXTURE_KEYS = ("methane", "ethane", "propane", "n-butane", "isobutane", "n-pentane",
+                "isopentane", "nitrogen", "carbon-dioxide", "ethylene", "propylene")
+
+
+def _parse_cargo(check: _Checker, data: dict, model: str | None):
+    """The [cargo] table -> (name or label, mole fractions or None, table, prices)."""
+    cargo = check.table(data, "cargo", "", required=True)
+    if cargo is None:
+        return None, None, None, (None, None)
+    spec = SCHEMA["cargo"]
+    check.unknown_keys(cargo, "cargo", "cargo")
+    prices = (check.number(cargo, "cargo", spec["price_per_mmbtu"]),
+              check.number(cargo, "cargo", spec["price_per_tonne"]))
+    label = check.string(cargo, "cargo", spec["label"]) if "label" in cargo else None
+    raw_fractions = cargo.get("mole_fractions", _ABSENT)
+    if raw_fractions is _ABSENT:
+        if "fluid" not in cargo:
+            check.add("cargo.fluid is required (or a [cargo.mole_fractions] table for a "
+                      f"mixture); allowed fluids: {', '.join(CATALOGUE)}")
+            return None, None, None, prices
+        # No spelling guesses for cargoes: a near name is a different chemical.
+        fluid = check.choice(cargo, "cargo", spec["fluid"], CATALOGUE, "cargo",
+                             aliases=_CARGO_ALIASES, fuzzy=False)
+        return fluid, None, (saturation_table(fluid) if fluid else None), prices
+    if "fluid" in cargo:
+        check.add(f"cargo.fluid = {_show(cargo['fluid'])} and [cargo.mole_fractions] both "
+                  "given: give one (a fluid for a pure cargo, mole fractions for a mixture)")
+        return None, None, None, prices
+    fractions = _parse_fractions(check, raw_fractions)
+    if fractions is None:
+        return None, None, None, prices
+    if len(fractions) == 1:
+        # a single component is the pure-cargo path
+        name = fractions[0][0]
+        return name, None, saturation_table(name), prices
+    if model is not None and model != "equilibrium":
+        check.add(f'model = "{model}": mixture cargoes run with the equilibrium model only; '
+                  'use model = "equilibrium" or a pure cargo')
+        return None, None, None, prices
+    from .mixture import EquilibriumError
+    from .mixture_table import loaded_mixture_tables
+
+    try:
+        table = loaded_mixture_tables(fractions)[1]
+    except (EquilibriumError, ValueError) as exc:
+        check.add(f"cargo.mole_fractions: the bubble curve of this mixture could not be "
+                  f"computed ({exc})")
+        return None, None, None, prices
+    text = label or "mixture (" + ", ".join(f"{c} {100 * f:.3g} %" for c, f in fractions) + ")"
+    return text, fractions, table, prices
+
+
+def _parse_fractions(check: _Checker, value) -> tuple[tuple[str, float], ...] | None:
+    """[cargo.mole_fractions] -> ((name, fraction), ...) without zeros, or None."""
+    allowed = ", ".join(MIXTURE_KEYS)
+    if not isinstance(value, dict):
+        check.add(f"cargo.mole_fractions = {_show(value)}: must be a table "
+                  f"[cargo.mole_fractions] of component = mole fraction; components: {allowed}")
+        return None
+    if not value:
+        check.add(f"[cargo.mole_fractions] is empty: list at least one of {allowed}")
+        return None
+    out, ok = [], True
+    for key, x in value.items():
+        path = f"cargo.mole_fractions.{key}"
+        if key not in MIXTURE_KEYS:
+            plain = str(key).strip().lower().replace(" ", "-").replace("_", "-")
+            hint = f' (did you mean "{plain}"?)' if plain in MIXTURE_KEYS else ""
+            check.add(f"{path}: unknown component{hint}; allowed: {allowed}")
+            ok = False
+            continue
+        if isinstance(x, bool) or not isinstance(x, (int, float)) or not math.isfinite(x):
+            check.add(f"{path} = {_show(x)}: must be a number from 0 to 1 (mole fraction)")
+            ok = False
+            continue
+        if not 0.0 <= x <= 1.0:
+            check.add(f"{path} = {_show(x)}: must be from 0 to 1 (mole fraction)")
+            ok = False
+            continue
+        if x > 0.0:
+            out.append((str(key), float(x)))
+    if not ok:
+        return None
+    total = math.fsum(x for _, x in out)
+    if abs(total - 1.0) > 1e-6:
+        check.add(f"[cargo.mole_fractions] sum to {total:.9g}: mole fractions must sum to 1 "
+                  "within 1e-6")
+        return None
+    return tuple((name, x / total) for name, x in out)
+
+
+def cargo_table(scenario: Scenario) -> SaturationTable:
+    """Saturation table of the scenario's cargo: the catalogue table of a pure cargo, or
+    the bubble-curve table of a mixture as loaded (pseudo-pure; see
+    :func:`sim.mixture_table.loaded_mixture_tables`)."""
+    if scenario.mole_fractions is None:
+        return saturation_table(scenario.cargo)
+    from .mixture_table import loaded_mixture_tables
+
+    return loaded_mixture_tables(scenario.mole_fractions)[1]
 
 
 def _parse_tank(check: _Checker, data: dict, table: SaturationTable | None):

@@ -40,10 +40,11 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from . import heat as heat_mod
-from .cargo import saturation_table
+from .mixture import EquilibriumError
 from .models import MODELS
-from .results import Event, build_result
-from .scenario import Scenario
+from .models.mixture_equilibrium import MixtureStateError
+from .results import ACCUMULATORS, SINK_KEYS, Event, build_result
+from .scenario import Scenario, cargo_table
 
 #: Largest integration step [s]; keeps every switch and hazard resolvable.
 MAX_STEP = 12 * 3600.0
@@ -58,9 +59,9 @@ HEEL_EMPTY_FILL = 1e-4
 MAX_SEGMENTS = 20_000
 
 VAPOUR, RELIQUEFY = "vapour", "reliquefy"
-#: Order of the per-sink accumulated masses in the state vector (after the
-#: model state and the accumulated heat); results read them in this order.
-SINK_KEYS = ("fuel", "reliquefaction", "oxidiser", "relief")
+#: Errors that mean "the cargo state left what the model can describe": the run
+#: stops with the reason instead of raising.
+MODEL_LIMIT_ERRORS = (MixtureStateError, EquilibriumError)
 
 
 @dataclass(frozen=True)
@@ -96,7 +97,7 @@ class _Voyage:
         self.scenario = scenario
         tank = scenario.tank
         self.count = tank.count
-        self.table = saturation_table(scenario.cargo)
+        self.table = cargo_table(scenario)
         self.shape = tank.shape
         self.volume = self.shape.volume()
         area = self.shape.surface_area()
@@ -118,10 +119,23 @@ class _Voyage:
         self.u_value = u_value
         self.area = area
         ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
-        self.model = MODELS[scenario.model](
-            self.table, self.volume, ua_air, ua_sea, shape=self.shape
-        )
+        self.gross_molar = _gross_molar_values(scenario)
+        if scenario.mole_fractions is None:
+            self.model = MODELS[scenario.model](
+                self.table, self.volume, ua_air, ua_sea, shape=self.shape
+            )
+        else:
+            from .mixture_table import loaded_mixture_tables
+            from .models.mixture_equilibrium import MixtureEquilibriumModel
+
+            self.model = MixtureEquilibriumModel(
+                loaded_mixture_tables(scenario.mole_fractions)[0], self.volume, ua_air, ua_sea,
+                shape=self.shape, gross_molar=self.gross_molar,
+                limits=(self.table.temperature_min, self.table.temperature_max),
+            )
         self.n_model = len(self.model.state_names)
+        self.delivered_energy = 0.0
+        self.loaded_energy = 0.0
 
         sinks = [Sink("fuel", "fuel (engines)", VAPOUR, scenario.fuel_floor_pressure)]
         if scenario.reliquefaction is not None:
@@ -227,15 +241,25 @@ class _Voyage:
         state = self.evaluate(y, leg)
         y = np.array(y, dtype=float)
         before = state.cargo_mass
-        y[:n] = self.model.initial_state(leg.start_fill, state.pressure)
+        energy_before = self.cargo_energy(y, state)
+        if state.liquid_fractions is not None:
+            # a mixture keeps its weathered composition; cargo loaded is taken alike
+            y[:n] = self.model.initial_state(leg.start_fill, state.pressure,
+                                             liquid=state.liquid_fractions)
+        else:
+            y[:n] = self.model.initial_state(leg.start_fill, state.pressure)
         self._cache_key = None
-        after = float(self.evaluate(y, leg).cargo_mass)
+        state_after = self.evaluate(y, leg)
+        after = float(state_after.cargo_mass)
         moved = (before - after) * self.count / 1000.0
+        moved_energy = (energy_before - self.cargo_energy(y, state_after)) * self.count
         if moved >= 0.0:
             self.delivered_t += moved
+            self.delivered_energy += moved_energy
             words = f"discharged {moved:.1f} t"
         else:
             self.loaded_t -= moved
+            self.loaded_energy -= moved_energy
             words = f"loaded {-moved:.1f} t"
         self.note(
             t,
@@ -274,6 +298,31 @@ class _Voyage:
             f"{pa_to_barg(before):.3f} -> {pa_to_barg(after):.3f} barg",
         )
         return y
+
+    # -- heating value ------------------------------------------------------------
+    def model_molar_mass(self, name: str) -> float:
+        """Molar mass of a cargo component (CoolProp) [kg/mol]."""
+        if self.scenario.mole_fractions is None:
+            return self.table.molar_mass
+        from .mixture import _pure_molar_mass
+
+        return _pure_molar_mass(name)
+
+    def cargo_energy(self, y, state) -> float:
+        """Gross heating value of one tank's contents [J] (0 without component values)."""
+        if self.gross_molar is None:
+            return 0.0
+        if state.liquid_fractions is not None:
+            return float(np.dot(y[: self.n_model - 1], self.gross_molar))
+        return state.cargo_mass * float(self.gross_molar[0]) / self.table.molar_mass
+
+    def vapour_heating_value(self, state) -> float:
+        """Gross heating value of the vapour drawn off [J/kg] (0 without values)."""
+        if self.gross_molar is None:
+            return 0.0
+        if state.liquid_fractions is not None:
+            return self.model.vapour_heating_value(state)
+        return float(self.gross_molar[0]) / self.table.molar_mass
 
     # -- state evaluation -----------------------------------------------------
     def evaluate(self, y, leg):
@@ -352,6 +401,9 @@ class _Voyage:
         high = table.temperature_max * (1.0 - 1e-9)
         make(lambda t, y: self.evaluate(y, leg).liquid_temperature - low, ("low-limit",), -1)
         make(lambda t, y: self.evaluate(y, leg).liquid_temperature - high, ("high-limit",), 1)
+        margin = getattr(self.model, "refresh_margin", None)
+        if margin is not None:
+            make(lambda t, y: margin(self.evaluate(y, leg)), ("refresh",), 1)
         if watch_vacuum:
             vac = self.scenario.tank.vacuum_pressure
             make(lambda t, y: self.evaluate(y, leg).pressure - vac, ("vacuum",), -1)
@@ -469,12 +521,18 @@ def simulate(scenario: Scenario, progress=None):
             f"{100 * limit:.2f} % for relief set {pa_to_barg(tank.relief_set_pressure):.3f} barg",
         )
 
-    y = np.concatenate([model.initial_state(tank.fill, tank.pressure), np.zeros(5)])
+    y = np.concatenate([model.initial_state(tank.fill, tank.pressure), np.zeros(ACCUMULATORS)])
     n = voyage.n_model
     scale = np.abs(y).copy()
+    if hasattr(model, "state_scale"):
+        scale[:n] = model.state_scale(y[:n])
+    first = voyage.evaluate(y, scenario.legs[0])
+    mass0 = first.cargo_mass
     heat_scale = abs(voyage.u_value * voyage.area * 50.0 * scenario.duration) + 1.0
-    scale[n:] = [heat_scale, y[0], y[0], y[0], y[0]]
+    energy_scale = mass0 * max(voyage.vapour_heating_value(first), 1.0)
+    scale[n:] = [heat_scale] + [mass0] * len(SINK_KEYS) + [energy_scale] * len(SINK_KEYS)
     atol = np.maximum(scale, 1.0) * 1e-10
+    voyage.energy_loaded_start = voyage.cargo_energy(y, first) * voyage.count
 
     end = scenario.duration
     breaks = voyage.breakpoints()
@@ -522,8 +580,10 @@ def simulate(scenario: Scenario, progress=None):
 
         funcs = voyage.event_functions(mode, caps, leg, watch_vacuum)
 
-        # accumulated mass per sink, after the heat: fuel, reliquefied, oxidised, vented
+        # accumulated mass per sink, after the heat: fuel, reliquefied, oxidised,
+        # vented; then the gross heating value each carried away
         slots = [(n + 1 + SINK_KEYS.index(sink.key), k) for k, sink in enumerate(voyage.sinks)]
+        energy_offset = len(SINK_KEYS)
 
         def rhs(t_, y_, mode=mode, caps=caps, leg=leg, slots=slots):
             voyage.rhs_calls += 1
@@ -535,26 +595,34 @@ def simulate(scenario: Scenario, progress=None):
             out[:n] = d
             out[n] = st.heat_in
             out[n + 1 :] = 0.0
+            gcv = voyage.vapour_heating_value(st)
             for slot, k in slots:
                 out[slot] = r[k]
+                out[slot + energy_offset] = r[k] * gcv
             return out
 
-        sol = solve_ivp(
-            rhs,
-            (t, t_next),
-            y,
-            method="RK45",
-            rtol=RTOL,
-            atol=atol,
-            max_step=MAX_STEP,
-            dense_output=True,
-            events=[f for f, _ in funcs],
-        )
+        context = model.context() if hasattr(model, "context") else None
+        try:
+            sol = solve_ivp(
+                rhs,
+                (t, t_next),
+                y,
+                method="RK45",
+                rtol=RTOL,
+                atol=atol,
+                max_step=MAX_STEP,
+                dense_output=True,
+                events=[f for f, _ in funcs],
+            )
+        except MODEL_LIMIT_ERRORS as exc:  # the state left the model's tables or two phases
+            status, message = "stopped", f"stopped at {t / 3600:.2f} h: {exc}"
+            voyage.note(t, "model-limit", message)
+            break
         if sol.status == -1:
             status, message = "failed", f"integration failed at {t / 3600:.2f} h: {sol.message}"
             break
         t_end = float(sol.t[-1])
-        segments.append((t, t_end, sol.sol, mode, caps, leg))
+        segments.append((t, t_end, sol.sol, mode, caps, leg, context))
         y = sol.y[:, -1].copy()
         if sol.status == 1:
             fired = [i for i, te in enumerate(sol.t_events) if len(te)]
@@ -614,6 +682,17 @@ def simulate(scenario: Scenario, progress=None):
                     f"pressure below the vacuum limit {pa_to_barg(tank.vacuum_pressure):.3f} barg",
                 )
                 watch_vacuum = False
+            elif kind == "refresh":
+                try:
+                    model.refresh(y)
+                except MODEL_LIMIT_ERRORS as exc:
+                    status, message = "stopped", f"stopped at {t_end / 3600:.2f} h: {exc}"
+                    voyage.note(t_end, "model-limit", message)
+                    t = t_end
+                    break
+                voyage._cache_key = None
+                state = voyage.evaluate(y, leg)
+                mode = voyage.choose_mode(state, caps)
             elif kind == "cross":
                 mode = voyage.choose_mode(state, caps)
             elif kind == "stop-draw":
@@ -632,9 +711,29 @@ def simulate(scenario: Scenario, progress=None):
         if progress is not None:
             progress(min(t / end, 1.0))
 
+    if not segments:
+        raise RuntimeError(message)
     result = build_result(voyage, segments, status, message, t)
-    result.stats = {"rhs_calls": voyage.rhs_calls, "segments": len(segments)}
+    result.stats = {"rhs_calls": voyage.rhs_calls, "segments": len(segments),
+                    "table_refreshes": getattr(model, "refreshes", 0)}
     return result
+
+
+def _gross_molar_values(scenario: Scenario):
+    """Gross calorific value per mole of each cargo component [J/mol], or None.
+
+    ISO 6976 values at the combustion reference temperature of
+    :data:`sim.energy.COMBUSTION_TEMPERATURE`; None when a component has no
+    tabulated value (e.g. ethylene).
+    """
+    from .energy import component_gross_molar
+
+    names = ([c for c, _ in scenario.mole_fractions] if scenario.mole_fractions is not None
+             else [scenario.cargo])
+    values = [component_gross_molar(c) for c in names]
+    if any(v is None for v in values):
+        return None
+    return np.array(values)
 
 
 _OUTAGE_WORDS = {

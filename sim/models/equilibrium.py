@@ -58,6 +58,9 @@ class TankState:
         ``liquid_temperature`` (models without a stratified liquid)
     bulk_liquid_temperature : float  liquid below any warm surface layer [K];
         defaults to ``liquid_temperature``
+    liquid_fractions, vapour_fractions : ndarray or None
+        Mole fractions of liquid and vapour in the model's component order
+        (mixture cargoes only) [-]
     """
 
     pressure: float
@@ -71,6 +74,8 @@ class TankState:
     _extra: tuple = ()
     surface_temperature: float | None = None
     bulk_liquid_temperature: float | None = None
+    liquid_fractions: np.ndarray | None = None
+    vapour_fractions: np.ndarray | None = None
 
     def __post_init__(self):
         if self.surface_temperature is None:

@@ -1,0 +1,357 @@
+"""Equilibrium tank model for a multicomponent cargo (LNG, LPG blends).
+
+Liquid and vapour share one temperature and are in phase equilibrium; the
+vapour is the one in equilibrium with the (weathering) liquid. The state of
+one tank is the conserved quantities only: moles of every component
+:math:`n_i` and the internal energy U, so every component and the energy
+balance close by construction:
+
+.. math::
+
+    \\dot n_i = -\\dot n_{out}\\, y_i, \\qquad
+    \\dot U = \\dot Q - \\dot n_{out} h^V - \\dot n_{rl} (h^V - h^{ret})
+
+Vapour leaving (fuel, oxidiser, relief) carries the equilibrium vapour
+composition y; the reliquefaction plant draws vapour and returns it
+condensed, as liquid of the same composition at tank temperature and
+pressure (partial molar liquid enthalpies, :math:`h^{ret} = \\sum_i y_i \\bar
+h^L_i`), so it removes :math:`h^V - h^{ret}` per mole.
+
+Algebraic state
+---------------
+At (n, U, V) the temperature T, vapour mole fraction beta and pressure p
+solve three equations, with :math:`K_i = K^0_i(T) p^0(T)/p`,
+:math:`m_i = n_i / (1 + \\beta (K_i - 1))` (= moles of i per mole of liquid
+times the total moles, i.e. :math:`N x_i`):
+
+* phase equilibrium (Rachford-Rice): :math:`\\sum_i m_i = N`;
+* volume: :math:`\\sum_i m_i [(1-\\beta) \\bar v^L_i + \\beta K_i \\bar v^V_i p^0/p] = V`;
+* energy: :math:`\\sum_i m_i [(1-\\beta) \\bar u^L_i + \\beta K_i \\bar u^V_i] = U`.
+
+Properties come from :class:`sim.mixture_table.MixtureTable` (K-values and
+partial molar properties along the bubble curve of a reference liquid,
+splined in T). Newton's method on (T, beta, ln p) with the analytic
+Jacobian, warm-started from the last answer, converges in 1-3 steps. The
+same Jacobian gives the pressure rate by the implicit-function theorem, so
+the orchestrator's affine relation dp/dt = a0 - b_out m_out - b_rl m_rl is
+exact for this state.
+
+When the liquid drifts more than :data:`DRIFT_TOLERANCE` from the table's
+reference, or the temperature leaves the table, :meth:`refresh` rebuilds the
+table around the current liquid (the orchestrator calls it from a terminal
+event); the state vector is unchanged, so nothing is lost or created.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..mixture_table import MixtureTable, node_temperatures
+from .equilibrium import TankState
+
+#: Largest change of any liquid mole fraction from the table's reference
+#: before the table is rebuilt [-]. The first-order corrections leave an error
+#: of order drift^2 (tests compare with CoolProp HEOS closed-tank states).
+DRIFT_TOLERANCE = 2e-3
+#: A rebuilt table spans this far below / above the current temperature [K].
+REFRESH_SPAN = (4.0, 8.0)
+#: Spline node spacing of rebuilt tables [K].
+REFRESH_SPACING = 2.0
+
+
+class MixtureStateError(ValueError):
+    """The mixture state could not be solved (left the two-phase region or the tables)."""
+
+
+class MixtureEquilibriumModel:
+    """Homogeneous saturated tank of a mixture: state ``[n_1 .. n_c, U]`` per tank.
+
+    Parameters
+    ----------
+    table : MixtureTable
+        Properties of the liquid as loaded (the first reference).
+    volume : float  tank volume [m^3]
+    ua_air, ua_sea : float  conductances toward air and sea [W/K]
+    gross_molar : sequence of float or None
+        Gross calorific value of each component [J/mol] (ISO 6976), for
+        the energy carried by boil-off; None if a component has none.
+    limits : tuple of float
+        Temperatures a rebuilt table may span [K] (the as-loaded table's
+        range).
+    """
+
+    name = "equilibrium"
+
+    def __init__(self, table: MixtureTable, volume: float, ua_air: float, ua_sea: float,
+                 shape=None, gross_molar=None, limits=None):
+        self.table = table
+        self.components = table.components
+        self.size = len(self.components)
+        self.volume = volume
+        self.ua_air = ua_air
+        self.ua_sea = ua_sea
+        self.shape = shape
+        self.masses = table.molar_masses
+        self.gross_molar = None if gross_molar is None else np.asarray(gross_molar, dtype=float)
+        self.limits = limits or (table.temperature_min, table.temperature_max)
+        self.state_names = tuple(f"moles_{c}" for c in self.components) + ("internal_energy",)
+        self.refreshes = 0
+        self.warnings: list[str] = []
+        self._guess = None
+
+    # -- set-up ------------------------------------------------------------------
+    def initial_state(self, fill: float, pressure: float, liquid=None) -> np.ndarray:
+        """Tank filled to ``fill`` [-] with liquid ``liquid`` (default: the table's
+        reference) at its bubble point at ``pressure`` [Pa], vapour in equilibrium."""
+        x = self.table.reference if liquid is None else np.asarray(liquid, dtype=float)
+        x = x / x.sum()
+        temp = self.table.bubble_temperature(pressure, x)
+        v, _ = self.table.raw(temp)
+        lnp, lnk, vl, ul, vv, uv = self.table.split(v)
+        k = np.exp(lnk)
+        p = math.exp(lnp) * float(np.dot(k, x))
+        y = k * x / float(np.dot(k, x))
+        ratio = math.exp(lnp) / p
+        v_l = float(np.dot(x, vl))
+        v_v = float(np.dot(y, vv)) * ratio
+        n_l = fill * self.volume / v_l
+        n_v = (1.0 - fill) * self.volume / v_v
+        moles = n_l * x + n_v * y
+        energy = n_l * float(np.dot(x, ul)) + n_v * float(np.dot(y, uv))
+        total = n_l + n_v
+        self._guess = (temp, n_v / total, math.log(p))
+        return np.concatenate([moles, [energy]])
+
+    def state_scale(self, y) -> np.ndarray:
+        """Magnitudes for absolute tolerances: total moles, and N times 20 kJ/mol."""
+        total = float(np.sum(y[: self.size]))
+        return np.concatenate([np.full(self.size, total), [total * 2e4]])
+
+    # -- the algebraic solve ------------------------------------------------------
+    def _residual(self, n, energy, total, temp, beta, q, want_jacobian=True):
+        table = self.table
+        v, s = table.raw(temp)
+        lnp0, lnk, vl, ul, vv, uv = table.split(v)
+        dlnp0, dlnk, dvl, dul, dvv, duv = table.split(s)
+        k = np.exp(lnk + (lnp0 - q))
+        r = math.exp(lnp0 - q)
+        d = 1.0 + beta * (k - 1.0)
+        m = n / d
+        w = (1.0 - beta) * vl + beta * k * vv * r
+        e = (1.0 - beta) * ul + beta * k * uv
+        scale = total * 2e4
+        res = np.array([
+            m.sum() / total - 1.0,
+            float(np.dot(m, w)) / self.volume - 1.0,
+            (float(np.dot(m, e)) - energy) / scale,
+        ])
+        parts = (v, k, r, d, m, w, e, scale)
+        if not want_jacobian:
+            return res, parts, None
+        g = dlnk + dlnp0  # d ln K / dT
+        dm_dbeta = -m * (k - 1.0) / d
+        dm_dk = -m * beta / d
+        dm_dt = dm_dk * k * g
+        dm_dq = -dm_dk * k
+        dw_dbeta = -vl + k * vv * r
+        dw_dt = (1.0 - beta) * dvl + beta * k * r * (vv * (g + dlnp0) + dvv)
+        dw_dq = -2.0 * beta * k * vv * r
+        de_dbeta = -ul + k * uv
+        de_dt = (1.0 - beta) * dul + beta * k * (uv * g + duv)
+        de_dq = -beta * k * uv
+        jac = np.array([
+            [dm_dt.sum() / total, dm_dbeta.sum() / total, dm_dq.sum() / total],
+            [
+                (float(np.dot(dm_dt, w)) + float(np.dot(m, dw_dt))) / self.volume,
+                (float(np.dot(dm_dbeta, w)) + float(np.dot(m, dw_dbeta))) / self.volume,
+                (float(np.dot(dm_dq, w)) + float(np.dot(m, dw_dq))) / self.volume,
+            ],
+            [
+                (float(np.dot(dm_dt, e)) + float(np.dot(m, de_dt))) / scale,
+                (float(np.dot(dm_dbeta, e)) + float(np.dot(m, de_dbeta))) / scale,
+                (float(np.dot(dm_dq, e)) + float(np.dot(m, de_dq))) / scale,
+            ],
+        ])
+        return res, parts, jac
+
+    def _first_guess(self, n, energy, total):
+        """Start for Newton without a previous answer: liquid ~ feed, volume split."""
+        z = n / total
+        table = self.table
+        # pick the temperature whose saturated liquid+vapour energy matches, roughly
+        best = None
+        for temp in np.linspace(table.temperature_min, table.temperature_max, 25):
+            v, _ = table.raw(float(temp))
+            lnp0, lnk, vl, ul, vv, uv = table.split(v)
+            k = np.exp(lnk)
+            p = math.exp(lnp0) * float(np.dot(k, z))
+            y = k * z / float(np.dot(k, z))
+            v_l, v_v = float(np.dot(z, vl)), float(np.dot(y, vv)) * math.exp(lnp0) / p
+            beta = (self.volume / total - v_l) / (v_v - v_l)
+            if not 0.0 < beta < 1.0:
+                continue
+            u = (1 - beta) * float(np.dot(z, ul)) + beta * float(np.dot(y, uv))
+            miss = abs(u * total - energy)
+            if best is None or miss < best[0]:
+                best = (miss, float(temp), beta, math.log(p))
+        if best is None:
+            raise MixtureStateError("no two-phase state fits the tank contents")
+        return best[1:]
+
+    def _solve(self, n, energy):
+        total = float(n.sum())
+        guess = self._guess if self._guess is not None else self._first_guess(n, energy, total)
+        temp, beta, q = guess
+        for attempt in range(2):
+            for _ in range(40):
+                res, parts, jac = self._residual(n, energy, total, temp, beta, q)
+                if max(abs(res[0]), abs(res[1]), abs(res[2])) < 1e-13:
+                    self._guess = (temp, beta, q)
+                    return total, temp, beta, q, parts, jac
+                try:
+                    step = np.linalg.solve(jac, res)
+                except np.linalg.LinAlgError:
+                    break
+                dt, db, dq = (float(s) for s in step)
+                # damp: stay two-phase and inside a sensible temperature move
+                lam = 1.0
+                lam = min(lam, 2.0 / abs(dt)) if dt else lam
+                lam = min(lam, 0.3 / abs(dq)) if dq else lam
+                while not (0.0 < beta - lam * db < 1.0) and lam > 1e-6:
+                    lam *= 0.5
+                temp, beta, q = temp - lam * dt, beta - lam * db, q - lam * dq
+                if abs(lam * dt) < 1e-12 * temp and abs(lam * dq) < 1e-13 and lam == 1.0:
+                    res, parts, jac = self._residual(n, energy, total, temp, beta, q)
+                    self._guess = (temp, beta, q)
+                    return total, temp, beta, q, parts, jac
+            if attempt == 0:
+                temp, beta, q = self._first_guess(n, energy, total)
+        raise MixtureStateError(
+            f"mixture tank state did not converge (last T = {temp:.3f} K, "
+            f"vapour mole fraction {beta:.4g})"
+        )
+
+    # -- interface for the orchestrator --------------------------------------------
+    def evaluate(self, y, air_temperature: float, sea_temperature: float) -> TankState:
+        """Tank state for ``[n_1 .. n_c, U]`` and the ambient temperatures [K]."""
+        n = np.asarray(y[: self.size], dtype=float)
+        energy = float(y[self.size])
+        total, temp, beta, q, parts, jac = self._solve(n, energy)
+        v, k, r, d, m, w, e, _ = parts
+        _, _, vl, ul, vv, uv = self.table.split(v)
+        x = m / total
+        yv = k * x
+        p = math.exp(q)
+        n_l, n_v = (1.0 - beta) * total, beta * total
+        v_liquid = n_l * float(np.dot(x, vl))
+        heat = self.ua_air * (air_temperature - temp) + self.ua_sea * (sea_temperature - temp)
+        return TankState(
+            p, temp, temp, v_liquid / self.volume,
+            n_l * float(np.dot(x, self.masses)), n_v * float(np.dot(yv, self.masses)), heat,
+            {"n": n, "total": total, "x": x, "y": yv, "jac": jac, "p": p, "r": r,
+             "k": k, "d": d, "w": w, "e": e, "vl": vl, "ul": ul, "vv": vv, "uv": uv,
+             "coefficients": None},
+            liquid_fractions=x, vapour_fractions=yv,
+        )
+
+    def evaluate_many(self, y, air_temperature: float, sea_temperature: float) -> TankState:
+        """:meth:`evaluate` for a 2-D array of states (one column each); fields are arrays."""
+        y = np.asarray(y, dtype=float)
+        states = [self.evaluate(y[:, j], air_temperature, sea_temperature)
+                  for j in range(y.shape[1])]
+        col = lambda name: np.array([getattr(s, name) for s in states])  # noqa: E731
+        coefficients = np.array([self.pressure_rate_coefficients(s) for s in states]).T
+        return TankState(
+            col("pressure"), col("liquid_temperature"), col("vapour_temperature"), col("fill"),
+            col("liquid_mass"), col("vapour_mass"), col("heat_in"),
+            {"coefficients": tuple(coefficients)},
+            liquid_fractions=np.array([s.liquid_fractions for s in states]).T,
+            vapour_fractions=np.array([s.vapour_fractions for s in states]).T,
+        )
+
+    def _vapour_terms(self, state):
+        ex = state._extra
+        yv, p = ex["y"], ex["p"]
+        m_y = float(np.dot(yv, self.masses))
+        # h^V = u^V + p v^V with v^V_i scaled by p0/p
+        h_vapour = float(np.dot(yv, ex["uv"] + p * ex["vv"] * ex["r"]))
+        h_return = float(np.dot(yv, ex["ul"] + p * ex["vl"]))
+        return yv, m_y, h_vapour, h_return
+
+    def pressure_rate_coefficients(self, state: TankState) -> tuple[float, float, float]:
+        """``(a0 [Pa/s], b_out [Pa/kg], b_rl [Pa/kg])`` of dp/dt = a0 - b_out m_out - b_rl m_rl.
+
+        Implicit-function theorem on the three state equations: for a change
+        ds of the state, J dw = -dR/ds ds with w = (T, beta, ln p).
+        """
+        ex = state._extra
+        if ex["coefficients"] is not None:
+            return ex["coefficients"]
+        yv, m_y, h_v, h_ret = self._vapour_terms(state)
+        total, d, w, e = ex["total"], ex["d"], ex["w"], ex["e"]
+        scale = total * 2e4
+        sum_x = float(np.sum(ex["n"] / d)) / total
+
+        def d_res(dn, du):
+            return np.array([
+                float(np.dot(1.0 / d - sum_x, dn)) / total,
+                float(np.dot(w / d, dn)) / self.volume,
+                (float(np.dot(e / d, dn)) - du) / scale,
+            ])
+
+        rhs = np.column_stack([
+            d_res(np.zeros(self.size), state.heat_in),
+            d_res(-yv / m_y, -h_v / m_y),
+            d_res(np.zeros(self.size), -(h_v - h_ret) / m_y),
+        ])
+        dq = -np.linalg.solve(ex["jac"], rhs)[2] * ex["p"]
+        ex["coefficients"] = (float(dq[0]), -float(dq[1]), -float(dq[2]))
+        return ex["coefficients"]
+
+    def derivatives(self, state: TankState, vapour_out: float, reliquefied: float) -> np.ndarray:
+        """d[n_1 .. n_c, U]/dt for vapour leaving and vapour reliquefied [kg/s]."""
+        yv, m_y, h_v, h_ret = self._vapour_terms(state)
+        n_out, n_rl = vapour_out / m_y, reliquefied / m_y
+        out = np.empty(self.size + 1)
+        out[: self.size] = -n_out * yv
+        out[self.size] = state.heat_in - n_out * h_v - n_rl * (h_v - h_ret)
+        return out
+
+    def vapour_heating_value(self, state: TankState) -> float:
+        """Gross calorific value of the boil-off [J/kg] (NaN without component values)."""
+        if self.gross_molar is None:
+            return math.nan
+        yv = state._extra["y"]
+        return float(np.dot(yv, self.gross_molar)) / float(np.dot(yv, self.masses))
+
+    # -- table upkeep ---------------------------------------------------------------
+    def refresh_margin(self, state: TankState) -> float:
+        """Negative while the table serves the state; crosses 0 when it must be rebuilt."""
+        drift = float(np.max(np.abs(state._extra["x"] - self.table.reference)))
+        t = state.liquid_temperature
+        # Near the as-loaded range's ends there is no wider table to move to.
+        lo = self.table.temperature_min if self.table.temperature_min > self.limits[0] else -1e9
+        hi = self.table.temperature_max if self.table.temperature_max < self.limits[1] else 1e9
+        return max(drift / DRIFT_TOLERANCE - 1.0, (t - hi) / 0.5, (lo - t) / 0.5)
+
+    def refresh(self, y) -> None:
+        """Rebuild the table around the current liquid and temperature."""
+        state = self.evaluate(y, 300.0, 300.0)
+        x = np.maximum(state._extra["x"], 1e-15)
+        t = state.liquid_temperature
+        lo = max(t - REFRESH_SPAN[0], self.limits[0])
+        hi = min(t + REFRESH_SPAN[1], self.limits[1])
+        self.table = MixtureTable(
+            self.components, x, node_temperatures(lo, hi, REFRESH_SPACING),
+            backends=(self.table.backend,),
+        )
+        self.refreshes += 1
+
+    def context(self):
+        """What :meth:`use` needs to evaluate states of the current segment later."""
+        return self.table
+
+    def use(self, context) -> None:
+        self.table = context
