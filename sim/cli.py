@@ -121,6 +121,27 @@ def cmd_run(args) -> int:
         f"reliquefied {s['reliquefied_t']:.1f} t ({s['reliquefaction_energy_kwh']:.0f} kWh)"
     )
     print(f"  mean boil-off {s['mean_bor_pct_day']:.4f} %/day")
+    if s["energy_loaded_gj"] is not None:
+        value = ""
+        if s["value_lost"] is not None:
+            value = f"; value lost {s['value_lost']:,.0f} ({s['value_lost_basis']})"
+        print(
+            f"  energy loaded {s['energy_loaded_gj']:,.0f} GJ, lost {s['energy_lost_gj']:,.0f} GJ "
+            f"({s['energy_lost_mmbtu']:,.0f} MMBtu), delivered {s['energy_delivered_gj']:,.0f} GJ"
+            f"{value}"
+        )
+    elif s["value_lost"] is not None:
+        print(f"  value lost {s['value_lost']:,.0f} ({s['value_lost_basis']})")
+    if scenario.mole_fractions is not None:
+        arrival = s["arrival_composition"]
+        bog = s["bog_composition_mean"] or {}
+        print("  composition, mol %   loaded   arrival   boil-off (mean)")
+        for name, x0 in s["initial_composition"].items():
+            y = f"{100 * bog[name]:9.4f}" if name in bog else "        -"
+            print(f"    {name:16s} {100 * x0:8.4f}  {100 * arrival[name]:8.4f}  {y}")
+        if s["gcv_start_mj_kg"] is not None:
+            print(f"  gross heating value {s['gcv_start_mj_kg']:.3f} -> "
+                  f"{s['gcv_arrival_mj_kg']:.3f} MJ/kg ({s['energy_reference']})")
     for e in result.events:
         if e.kind not in ("leg",):
             print(f"  {e.time / 3600:9.2f} h  {e.kind:22s} {e.detail}")

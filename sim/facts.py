@@ -6,9 +6,8 @@ Returned in trade units with unit-suffixed keys, like the run summary.
 from __future__ import annotations
 
 from . import heat as heat_mod
-from .cargo import saturation_table
 from .igc import loading_limit
-from .scenario import Scenario
+from .scenario import Scenario, cargo_table
 from .units import SECONDS_PER_DAY, T_ZERO_C, pa_to_barg
 
 
@@ -20,7 +19,7 @@ def initial_facts(scenario: Scenario) -> dict:
     the vented rate Q/h_fg (1 - rho_v/rho_l) over the initial liquid mass.
     """
     tank = scenario.tank
-    table = saturation_table(scenario.cargo)
+    table = cargo_table(scenario)
     volume = tank.shape.volume()
     area = tank.shape.surface_area()
     t_sat = table.temperature(tank.pressure)

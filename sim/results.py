@@ -328,9 +328,9 @@ def _commercial(voyage, frame, final_y, lost_kg) -> dict:
 
     value_lost, basis = None, None
     if scenario.price_per_mmbtu is not None and has_energy:
-        value_lost, basis = scenario.price_per_mmbtu * mmbtu(lost), "per MMBtu (gross)"
+        value_lost, basis = scenario.price_per_mmbtu * mmbtu(lost), "price per MMBtu, gross"
     elif scenario.price_per_tonne is not None:
-        value_lost, basis = scenario.price_per_tonne * lost_kg * count / 1000.0, "per tonne"
+        value_lost, basis = scenario.price_per_tonne * lost_kg * count / 1000.0, "price per tonne"
     return {
         "initial_composition": start,
         "arrival_composition": arrival,

@@ -234,11 +234,17 @@ def _scenario(data: dict, what: str = ""):
     from .scenario import ScenarioError, parse_scenario
 
     try:
-        return parse_scenario(data)
+        scenario = parse_scenario(data)
     except ScenarioError as exc:
         if not what:
             raise
         raise SizingError([f"{what}: {p}" for p in exc.problems]) from None
+    if scenario.mole_fractions is not None:
+        raise SizingError(
+            "[cargo.mole_fractions]: plant sizing works on pure cargoes; size with the main "
+            'component as the cargo (e.g. fluid = "methane" for LNG, "propane" for LPG) and '
+            "check the mixture with voyage runs")
+    return scenario
 
 
 def u_value_of(data: dict) -> float:

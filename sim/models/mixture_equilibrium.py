@@ -215,11 +215,15 @@ class MixtureEquilibriumModel:
                 except np.linalg.LinAlgError:
                     break
                 dt, db, dq = (float(s) for s in step)
-                # damp: stay two-phase and inside a sensible temperature move
+                # Damp: a sensible temperature move, and keep every 1 + beta (K_i - 1)
+                # positive. beta may go slightly negative (past liquid-full) so the
+                # orchestrator's liquid-full event can find the crossing.
                 lam = 1.0
                 lam = min(lam, 2.0 / abs(dt)) if dt else lam
                 lam = min(lam, 0.3 / abs(dq)) if dq else lam
-                while not (0.0 < beta - lam * db < 1.0) and lam > 1e-6:
+                k_max = float(parts[1].max())
+                beta_min = -0.5 / (k_max - 1.0) if k_max > 1.0 else -0.5
+                while not (beta_min < beta - lam * db < 1.0) and lam > 1e-6:
                     lam *= 0.5
                 temp, beta, q = temp - lam * dt, beta - lam * db, q - lam * dq
                 if abs(lam * dt) < 1e-12 * temp and abs(lam * dq) < 1e-13 and lam == 1.0:
