@@ -281,18 +281,22 @@ def loaded_mixture_tables(fractions: tuple[tuple[str, float], ...]):
     mixture = Mixture.from_fractions(dict(fractions))
     comps, x0 = mixture.components, mixture.as_array()
     p_lo, p_hi = BUBBLE_TABLE_PRESSURES
-    t_lo = _bubble_t(comps, x0, p_lo)
-    t_hi = None
-    for p in (p_hi, 0.6 * p_hi, 0.35 * p_hi, 0.2 * p_hi):
+    # Range from Wilson's K-value estimate (cheap, no flash); the table itself
+    # is built on exact CoolProp bubble points (QT), shrinking the top end where
+    # the mixture has no bubble point (near its critical region).
+    t_lo = wilson_bubble_temperature(comps, x0, p_lo)
+    t_hi = wilson_bubble_temperature(comps, x0, p_hi)
+    table, errors = None, []
+    for _ in range(5):
+        temps = np.linspace(t_lo, t_hi, BUBBLE_TABLE_NODES)
         try:
-            t_hi = _bubble_t(comps, x0, p)
+            table = MixtureTable(comps, x0, temps)
             break
-        except EquilibriumError:
-            continue
-    if t_hi is None:
-        raise EquilibriumError("could not find the mixture's bubble point above 0.6 MPa")
-    temps = np.linspace(t_lo, t_hi, BUBBLE_TABLE_NODES)
-    table = MixtureTable(comps, x0, temps)
+        except EquilibriumError as exc:
+            errors.append(str(exc))
+            t_hi = t_lo + 0.75 * (t_hi - t_lo)
+    if table is None:
+        raise EquilibriumError("could not tabulate the mixture's bubble curve: " + errors[-1])
     rows = []
     masses = table.molar_masses
     m_x = float(np.dot(x0, masses))
@@ -326,10 +330,37 @@ def loaded_mixture_tables(fractions: tuple[tuple[str, float], ...]):
     return table, sat
 
 
-def _bubble_t(components, x0, pressure: float) -> float:
-    for backend in DEFAULT_BACKENDS:
-        try:
-            return _saturation(components, x0, "bubble", "P", pressure, (backend,)).temperature
-        except EquilibriumError:
-            continue
-    raise EquilibriumError(f"no bubble point at {pressure:g} Pa")
+def wilson_bubble_temperature(components, liquid, pressure: float) -> float:
+    """Bubble temperature estimated with Wilson's K-values [K].
+
+    :math:`\\ln K_i = \\ln(p_{c,i}/p) + 5.373 (1 + \\omega_i)(1 - T_{c,i}/T)`, solved
+    for :math:`\\sum_i x_i K_i = 1` by bisection. Critical constants and acentric
+    factors from CoolProp. Used only to choose a table's temperature range.
+
+    References
+    ----------
+    G. M. Wilson, "A modified Redlich-Kwong equation of state, application to
+    general physical data calculations", AIChE 65th National Meeting, Cleveland,
+    1968, paper 15C (the K-value estimate as reproduced in most flash texts).
+    """
+    tc, pc, omega = [], [], []
+    for name in components:
+        st = _state("HEOS", (MIXTURE_COMPONENTS[name],), "any")
+        tc.append(st.T_critical())
+        pc.append(st.p_critical())
+        omega.append(st.acentric_factor())
+    tc, pc, omega = np.array(tc), np.array(pc), np.array(omega)
+    x = np.asarray(liquid, dtype=float)
+
+    def excess(temp):
+        k = pc / pressure * np.exp(5.373 * (1.0 + omega) * (1.0 - tc / temp))
+        return float(np.dot(x, k)) - 1.0
+
+    lo, hi = 20.0, 1000.0
+    for _ in range(100):
+        mid = 0.5 * (lo + hi)
+        if excess(mid) > 0.0:
+            hi = mid
+        else:
+            lo = mid
+    return 0.5 * (lo + hi)

@@ -52,6 +52,13 @@ MAX_STEP = 12 * 3600.0
 RTOL = 1e-8
 #: Relative band around a set pressure treated as "at the set pressure".
 AT_SET_TOLERANCE = 1e-7
+#: Wider band used right after a mixture table rebuild, which moves the
+#: computed pressure by up to ~0.1 % (see sim.models.mixture_equilibrium).
+REBUILD_TOLERANCE = 3e-3
+#: Time constant with which a holding sink pulls the pressure back to its set
+#: pressure when it is off it [s]. Long against the integrator's largest step
+#: divided by 2.8 (explicit RK stability), so it never limits the step.
+HOLD_RELAXATION = 6 * 3600.0
 #: Liquid fraction below which the heel counts as exhausted [-]: the tank
 #: model needs liquid to stay saturated.
 HEEL_EMPTY_FILL = 1e-4
@@ -348,9 +355,15 @@ class _Voyage:
         return rates
 
     def holding_rate(self, state, mode: Mode, caps) -> float:
-        """Rate of the holding sink that keeps dp/dt = 0 [kg/s]."""
+        """Rate of the holding sink that keeps the pressure at its set pressure [kg/s].
+
+        dp/dt = 0 at the set pressure; off it (by a few pascals after a mixture
+        table rebuild) the sink draws so that dp/dt = -(p - p_set)/HOLD_RELAXATION,
+        so the pressure returns to the set pressure instead of sitting beside it.
+        """
         a0, b_out, b_rl = self.model.pressure_rate_coefficients(state)
-        rest = a0
+        p_set = self.sinks[mode.holding].set_pressure
+        rest = a0 + (state.pressure - p_set) / HOLD_RELAXATION
         for k in mode.active:
             rest -= (b_rl if self.sinks[k].kind == RELIQUEFY else b_out) * caps[k]
         k = mode.holding
@@ -362,17 +375,29 @@ class _Voyage:
         return vapour, reliq
 
     # -- mode selection -----------------------------------------------------
-    def choose_mode(self, state, caps, force_active=(), force_inactive=()) -> Mode:
-        """Mode for a state, walking the sinks upward in set pressure."""
+    def choose_mode(self, state, caps, force_active=(), force_inactive=(),
+                    band=AT_SET_TOLERANCE) -> Mode:
+        """Mode for a state, walking the sinks upward in set pressure.
+
+        ``band`` is the relative distance from a set pressure that counts as at it.
+        """
         pressure = state.pressure
         active: set[int] = set()
         for k, sink in enumerate(self.sinks):
             if caps[k] <= 0.0 or k in force_inactive:
                 continue
-            if k in force_active or pressure > sink.set_pressure * (1.0 + AT_SET_TOLERANCE):
+            if k in force_active or pressure > sink.set_pressure * (1.0 + band):
+                if not math.isfinite(caps[k]):
+                    # A sink without a capacity limit (the relief valve) cannot run "at
+                    # capacity": above its set pressure (a mixture's table rebuild can
+                    # nudge the pressure a few pascals past it) it holds where it is.
+                    trial = Mode(frozenset(active), k)
+                    if self.holding_rate(state, trial, caps) > 0.0:
+                        return trial
+                    break
                 active.add(k)
                 continue
-            if pressure >= sink.set_pressure * (1.0 - AT_SET_TOLERANCE):
+            if pressure >= sink.set_pressure * (1.0 - band):
                 trial = Mode(frozenset(active), k)
                 needed = self.holding_rate(state, trial, caps)
                 if needed <= 0.0:
@@ -540,6 +565,8 @@ def simulate(scenario: Scenario, progress=None):
     status, message = "completed", "voyage completed"
     t = 0.0
     mode = None
+    announced = None  # the control mode last reported in the events
+    quiet = False
     mode_caps = None
     watch_vacuum = True
     count = 0
@@ -573,9 +600,9 @@ def simulate(scenario: Scenario, progress=None):
         state = voyage.evaluate(y, leg)
         _note_plant(voyage, t)
         if mode is None or mode_caps != caps or mixed:
-            old = mode
             mode = voyage.choose_mode(state, caps)
-            voyage.note_mode_change(t, old, mode, state)
+            voyage.note_mode_change(t, announced, mode, state)
+            announced, quiet = mode, False
         mode_caps = caps
 
         funcs = voyage.event_functions(mode, caps, leg, watch_vacuum)
@@ -669,12 +696,15 @@ def simulate(scenario: Scenario, progress=None):
                     message = "pressure fell below the modelled range"
                 status, stop = "stopped", True
             elif kind == "high-limit":
-                voyage.note(
-                    t_end,
-                    "near-critical",
-                    "cargo within 0.4 % of its critical temperature; run stopped",
-                )
-                status, message, stop = "stopped", "cargo approached its critical point", True
+                if math.isfinite(table.temperature_critical):
+                    words = "cargo within 0.4 % of its critical temperature; run stopped"
+                    message = "cargo approached its critical point"
+                else:
+                    words = (f"cargo reached {pa_to_barg(table.pressure_max):.1f} barg, the top "
+                             "of the mixture's property table; run stopped")
+                    message = "cargo left the modelled pressure range"
+                voyage.note(t_end, "near-critical", words)
+                status, stop = "stopped", True
             elif kind == "vacuum":
                 voyage.note(
                     t_end,
@@ -692,15 +722,23 @@ def simulate(scenario: Scenario, progress=None):
                     break
                 voyage._cache_key = None
                 state = voyage.evaluate(y, leg)
-                mode = voyage.choose_mode(state, caps)
+                mode = voyage.choose_mode(state, caps, band=REBUILD_TOLERANCE)
+                # A rebuilt table moves the pressure by a few tens of pascals; a
+                # sink that was holding may run off or at capacity for seconds to
+                # regain its set pressure. Not news: stay quiet until the mode
+                # returns, or something else happens.
+                quiet = True
             elif kind == "cross":
                 mode = voyage.choose_mode(state, caps)
             elif kind == "stop-draw":
                 mode = voyage.choose_mode(state, caps, force_inactive={tag[1]})
             elif kind == "over-capacity":
                 mode = voyage.choose_mode(state, caps, force_active={tag[1]})
-            if not stop and mode != old:
-                voyage.note_mode_change(t_end, old, mode, state)
+            if not stop and kind != "refresh" and mode != announced:
+                voyage.note_mode_change(t_end, announced, mode, state)
+                announced, quiet = mode, False
+            elif quiet and mode == announced:
+                quiet = False
         if t_end <= t:
             count += 1
         t = t_end

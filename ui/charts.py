@@ -8,11 +8,13 @@ and downloads can find them without relying on trace order.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 import plotly.graph_objects as go
+from plotly.subplots import make_subplots
 
 from sim.results import VoyageResult
 
@@ -55,6 +57,24 @@ OUTAGE_BANDS = {
 }
 
 FONT = "Source Sans Pro, Helvetica, Arial, sans-serif"
+
+#: One colour per mixture component (light ends cool, heavier ends warm, inerts grey).
+COMPONENT_COLOURS = {
+    "methane": "#1d4e6b",
+    "ethane": "#3f86a8",
+    "propane": "#3b8c6e",
+    "n-butane": "#b58b24",
+    "isobutane": "#d9a441",
+    "n-pentane": "#c2593f",
+    "isopentane": "#e08a6d",
+    "nitrogen": "#6b4c9a",
+    "carbon-dioxide": "#5d6d7e",
+    "ethylene": "#2a9d8f",
+    "propylene": "#8a6fb0",
+}
+#: Lowest mole percent drawn on the (log) boil-off composition chart; components that
+#: never reach it start hidden (their legend entry shows them).
+VAPOUR_FLOOR_PCT = 1e-3
 
 
 @dataclass(frozen=True)
@@ -300,16 +320,111 @@ def cargo_loss_figure(runs, height: int = 320) -> go.Figure:
     return fig
 
 
+def components(result: VoyageResult) -> list[str]:
+    """Components of a run's cargo, from its ``x_<component>`` columns (one for a pure cargo)."""
+    return [c[2:] for c in result.timeseries.columns if c.startswith("x_")]
+
+
+def is_mixture(result: VoyageResult) -> bool:
+    """True when the cargo has more than one component."""
+    return len(components(result)) > 1
+
+
+def _component_words(name: str) -> str:
+    from sim.cargo import CATALOGUE
+
+    info = CATALOGUE.get(name)
+    return info.label if info else name
+
+
+def composition_figure(result: VoyageResult, height_per_row: int = 220) -> go.Figure:
+    """Liquid composition over the voyage, one small panel per component (mol %).
+
+    Each panel has its own y range, so a tenth of a percent of nitrogen boiling
+    off shows as clearly as the methane share rising.
+    """
+    names = components(result)
+    cols = min(4, len(names))
+    rows = math.ceil(len(names) / cols)
+    x = _days(result)
+    ts = result.timeseries
+    titles = []
+    for name in names:
+        a, b = 100.0 * float(ts[f"x_{name}"].iloc[0]), 100.0 * float(ts[f"x_{name}"].iloc[-1])
+        digits = 4  # enough significant digits to show the change, up to 7
+        while digits < 7 and f"{a:.{digits}g}" == f"{b:.{digits}g}" and a != b:
+            digits += 1
+        titles.append(f"{_component_words(name)}: {a:.{digits}g} → {b:.{digits}g} %")
+    fig = make_subplots(rows=rows, cols=cols, subplot_titles=titles, horizontal_spacing=0.07,
+                        vertical_spacing=min(0.5 / rows, 0.24) if rows > 1 else 0.0)
+    for i, name in enumerate(names):
+        fig.add_trace(go.Scatter(
+            x=x, y=100.0 * ts[f"x_{name}"].to_numpy(dtype=float), mode="lines",
+            name=_component_words(name), meta=f"x_{name}",
+            line={"color": COMPONENT_COLOURS.get(name, PRESSURE_COLOUR), "width": 2.0},
+            hovertemplate="%{y:.4f} mol %<extra>%{fullData.name}</extra>",
+        ), row=i // cols + 1, col=i % cols + 1)
+    fig = _style(fig, "composition", "Liquid composition (each panel its own scale)", "",
+                 height_per_row * rows, legend=False)
+    fig.update_xaxes(title_text="")
+    fig.update_yaxes(exponentformat="none", nticks=5)
+    for c in range(1, cols + 1):
+        fig.update_xaxes(title_text="Days", row=rows, col=c)
+    for r in range(1, rows + 1):
+        fig.update_yaxes(title_text="mol %", row=r, col=1)
+    fig.update_annotations(font={"size": 12, "color": "#23313b"})
+    fig.update_layout(hovermode="closest", margin={"t": 72})
+    return fig
+
+
+def vapour_composition_figure(result: VoyageResult, height: int = 360) -> go.Figure:
+    """Vapour composition over the voyage (the boil-off when vapour is drawn), mol %, log axis.
+
+    The vapour is the one in equilibrium with the liquid; components that never reach
+    :data:`VAPOUR_FLOOR_PCT` start hidden (click their legend entry to show them).
+    """
+    fig = go.Figure()
+    ts = result.timeseries
+    x = _days(result)
+    for name in components(result):
+        y = 100.0 * ts[f"y_{name}"].to_numpy(dtype=float)
+        fig.add_trace(go.Scatter(
+            x=x, y=y, mode="lines", name=_component_words(name), meta=f"y_{name}",
+            visible=True if np.nanmax(y) >= VAPOUR_FLOOR_PCT else "legendonly",
+            line={"color": COMPONENT_COLOURS.get(name, PRESSURE_COLOUR), "width": 2.0},
+            hovertemplate="%{y:.4g} mol %<extra>%{fullData.name}</extra>",
+        ))
+    fig = _style(fig, "vapour_composition", "Vapour composition (what boils off)",
+                 "mol % (log scale)", height,
+                 legend=True)
+    fig.update_yaxes(type="log", range=[math.log10(VAPOUR_FLOOR_PCT), math.log10(150.0)],
+                     exponentformat="none", tickformat="~g")
+    return fig
+
+
+def density_figure(runs, height: int = 360) -> go.Figure:
+    """Liquid density over the voyage (rises as the light ends boil off)."""
+    return line_figure(runs, "liquid_density_kg_m3", "Liquid density", "Density (kg/m³)",
+                       "kg/m³", digits=2, height=height)
+
+
 def result_figures(label: str, result: VoyageResult,
                    levels: Sequence[Level]) -> dict[str, go.Figure]:
-    """The four charts of one run, by name."""
+    """The charts of one run, by name: four for every cargo, three more for a mixture."""
     runs = [(label, result)]
-    return {
+    figures = {
         "pressure": pressure_figure(runs, levels),
         "liquid_temp_c": temperature_figure(runs),
         "fill_pct": fill_figure(runs),
         "boil_off": boil_off_figure(result),
     }
+    if is_mixture(result):
+        figures["liquid_temp_c"].update_layout(
+            title={"text": "Liquid temperature (bubble point)"})
+        figures["composition"] = composition_figure(result)
+        figures["vapour_composition"] = vapour_composition_figure(result)
+        figures["liquid_density_kg_m3"] = density_figure(runs)
+    return figures
 
 
 def overlay_figures(runs: Sequence[tuple[str, VoyageResult]],

@@ -5,7 +5,10 @@ units, keys of ``docs/scenario-format.md``). The form holds
 
 * ``flat``: one value per scalar field, keyed by the dotted parameter name
   (``"tank.fill_pct"``), which is also the widget key; a field may hold None
-  where the format lets the value be left out;
+  where the format lets the value be left out. One entry is not scalar:
+  ``"cargo.mole_fractions"``, the mixture's liquid mole fractions as the file
+  writes them (``{component: fraction}``, zeros left out), which the set-up
+  page edits as a table in mole percent;
 * ``legs``: a table with one row per voyage leg;
 * ``outages``: one table for the outage windows of all plant.
 
@@ -24,7 +27,7 @@ import pandas as pd
 from sim.cargo import CATALOGUE
 from sim.geometry import SHAPES
 from sim.models import DEFAULT_MODEL, MODEL_DESCRIPTIONS, MODELS
-from sim.scenario import HEAD_CHOICES, HEADS_SHAPES, SCHEMA
+from sim.scenario import HEAD_CHOICES, HEADS_SHAPES, MIXTURE_KEYS, SCHEMA
 
 
 @dataclass(frozen=True)
@@ -63,8 +66,20 @@ FIELDS: dict[str, Field] = {f.key: f for f in (
     _f("title", "Scenario title", "Shown on the charts, in the run list and in downloads.", "text"),
     _f("model", "Tank model", "How the cargo inside one tank is modelled (see Methods): "
        + "; ".join(f"{k}: {v}" for k, v in MODEL_DESCRIPTIONS.items()), "choice"),
+    _f("cargo.kind", "The cargo is", "A pure cargo from the catalogue, or a mixture given by the "
+       "mole fractions of its liquid as loaded (LNG, LPG blends). Mixtures run with the "
+       "equilibrium tank model.", "choice"),
     _f("cargo.fluid", "Cargo", "Pure cargo; methane stands in for LNG and propane for LPG.",
        "choice"),
+    _f("cargo.label", "Name of the mixture", "Shown on the results and in downloads instead of "
+       "the list of components. Optional.", "text", blank="optional, e.g. 'typical LNG'"),
+    _f("cargo.price_per_mmbtu", "Price per MMBtu (gross)",
+       "Cargo price per million Btu of gross heating value, any currency; gives the value of "
+       "the cargo lost. Optional.", step=0.5, fmt="%.2f", blank="none"),
+    _f("cargo.price_per_tonne", "Price per tonne",
+       "Cargo price per tonne, any currency; used for the value of the cargo lost when no "
+       "per-MMBtu price is given or the cargo has no ISO 6976 heating value. Optional.",
+       step=10.0, fmt="%.2f", blank="none"),
     _f("mixing.days", "Mixing on days", "Days from departure on which the liquid is stirred "
        "(heavy weather, a cargo pump run), comma-separated, e.g. '4, 9'. Acts on the two-zone "
        "model: the warm surface layer is mixed into the bulk. Empty: never.", "text",
@@ -130,6 +145,7 @@ FIELDS: dict[str, Field] = {f.key: f for f in (
 
 #: Choice lists of the choice fields (file names), from the engine's registries.
 CHOICES: dict[str, tuple[str, ...]] = {
+    "cargo.kind": ("pure", "mixture"),
     "model": tuple(MODELS),
     "cargo.fluid": tuple(CATALOGUE),
     "tank.shape": tuple(SHAPES),
@@ -149,6 +165,8 @@ def choice_label(key: str, name: str) -> str:
         return name.replace("-", " ").capitalize()
     if key == "insulation.basis":
         return {"rated_bor_pct_day": "Rated BOR", "u_w_m2k": "U-value"}.get(name, name)
+    if key == "cargo.kind":
+        return {"pure": "One pure cargo", "mixture": "A mixture (mole fractions)"}.get(name, name)
     if key == "tank.shape":
         words = {"horizontal-cylinder": "Horizontal cylinder",
                  "vertical-cylinder": "Vertical cylinder"}
@@ -161,6 +179,92 @@ def shape_dimensions(shape: str) -> tuple[str, ...]:
     if shape not in SHAPES:
         return ()
     return tuple(f"tank.{k}" for k in SHAPES[shape][1])
+
+
+# ---------------------------------------------------------------------------
+# Mixture composition: file fractions <-> the editor's table in mole percent
+# ---------------------------------------------------------------------------
+
+#: Components a mixture may hold, in the order the editor lists them (the engine's list).
+COMPONENTS: tuple[str, ...] = tuple(MIXTURE_KEYS)
+#: Composition table columns -> (heading, help).
+COMPOSITION_COLUMNS = {
+    "name": ("Component", "Components the engine can mix; leave at 0 what the cargo lacks."),
+    "mol_pct": ("mol %", "Mole percent of the liquid as loaded; the file stores the fraction "
+                "(percent ÷ 100)."),
+}
+#: Largest |sum - 100| [mol %] the engine accepts (it checks the fractions to 1e-6).
+SUM_TOLERANCE_PCT = 1e-4
+
+
+def component_words(name: str) -> str:
+    """``"n-butane"`` -> ``"n-Butane (C4H10)"`` from the catalogue."""
+    info = CATALOGUE.get(name)
+    return f"{info.label} ({info.formula})" if info else name
+
+
+def composition_frame(fractions: dict | None) -> pd.DataFrame:
+    """The editor's table: one row per component (index = file name), mole percent.
+
+    Percent is rounded to 10 decimals so that a fraction typed in a file
+    (``0.915``) comes back from :func:`fractions_from_frame` as the same float.
+    """
+    fractions = fractions or {}
+    rows = {name: {"name": component_words(name),
+                   "mol_pct": round(100.0 * float(fractions.get(name, 0.0)), 10)}
+            for name in COMPONENTS}
+    frame = pd.DataFrame.from_dict(rows, orient="index", columns=list(COMPOSITION_COLUMNS))
+    frame.index.name = "component"
+    frame["name"] = frame["name"].astype(object)
+    frame["mol_pct"] = frame["mol_pct"].astype(float)
+    return frame
+
+
+def fractions_from_frame(frame: pd.DataFrame) -> dict[str, float]:
+    """``{component: fraction}`` from the editor's table; blank and 0 % rows left out.
+
+    Negative entries are kept so the engine's check names them.
+    """
+    out = {}
+    for name, pct in frame["mol_pct"].items():
+        if _blank(pct) or float(pct) == 0.0:
+            continue
+        out[str(name)] = round(float(pct) / 100.0, 12)
+    return out
+
+
+def composition_sum_pct(fractions: dict) -> float:
+    """Sum of the mole fractions in percent."""
+    return 100.0 * math.fsum(float(x) for x in fractions.values())
+
+
+def normalised(fractions: dict) -> dict[str, float]:
+    """Fractions scaled to sum to 1 (to 10 decimals; the rounding rest goes to the largest).
+
+    Raises ValueError when there is nothing positive to scale.
+    """
+    positive = {k: float(v) for k, v in fractions.items() if float(v) > 0.0}
+    total = math.fsum(positive.values())
+    if total <= 0.0:
+        raise ValueError("no component above 0 %")
+    out = {k: round(v / total, 10) for k, v in positive.items()}
+    largest = max(out, key=out.get)
+    out[largest] = round(out[largest] + (1.0 - math.fsum(out.values())), 10)
+    return out
+
+
+def apply_edits(base: pd.DataFrame, edits: dict | None) -> pd.DataFrame:
+    """A fixed-row table with a data editor's pending cell edits applied.
+
+    ``edits`` is the editor's session value (``{"edited_rows": {row: {col: value}}}``);
+    used by callbacks, which run before the editor hands back its table.
+    """
+    out = base.copy()
+    for row, changes in ((edits or {}).get("edited_rows") or {}).items():
+        for col, value in changes.items():
+            if col in out.columns:
+                out.iloc[int(row), out.columns.get_loc(col)] = value
+    return out
 
 
 # ---------------------------------------------------------------------------
@@ -286,10 +390,26 @@ def flat_from_dict(data: dict) -> tuple[dict, pd.DataFrame, pd.DataFrame]:
 
     tank, ins, cargo = table("tank"), table("insulation"), table("cargo")
     rl, ox, fuel = table("reliquefaction"), table("oxidiser"), table("fuel")
+    mixture = isinstance(cargo.get("mole_fractions"), dict)
+    fractions = {str(k): float(v) for k, v in (cargo.get("mole_fractions") or {}).items()
+                 if str(k) in COMPONENTS and _number_or_none(v) is not None and v != 0} \
+        if mixture else {}
+    fluid = cargo.get("fluid")
+    if mixture and fractions:
+        # the pure-cargo picker starts on the main component, should the user switch back
+        fluid = max(fractions, key=fractions.get)
+    elif not mixture and fluid in COMPONENTS:
+        # the mixture table starts as this cargo alone, should the user switch to a mixture
+        fractions = {fluid: 1.0}
     flat: dict[str, Any] = {
         "title": data.get("title") if isinstance(data.get("title"), str) else "",
         "model": data.get("model", DEFAULT_MODEL),
-        "cargo.fluid": cargo.get("fluid"),
+        "cargo.kind": "mixture" if mixture else "pure",
+        "cargo.fluid": fluid,
+        "cargo.label": cargo.get("label") if isinstance(cargo.get("label"), str) else "",
+        "cargo.price_per_mmbtu": number(cargo.get("price_per_mmbtu")),
+        "cargo.price_per_tonne": number(cargo.get("price_per_tonne")),
+        "cargo.mole_fractions": fractions,
         "tank.shape": tank.get("shape"),
         "tank.heads": tank.get("heads", _default("tank", "heads")),
         "tank.count": tank.get("count", _default("tank", "count")),
@@ -354,8 +474,18 @@ def dict_from_form(flat: dict, legs: pd.DataFrame, outages: pd.DataFrame) -> tup
     data: dict[str, Any] = {}
     put(data, "title", "title")
     put(data, "model", "model")
-    data["cargo"] = {}
-    put(data["cargo"], "fluid", "cargo.fluid")
+    cargo: dict[str, Any] = {}
+    if flat.get("cargo.kind") == "mixture":
+        put(cargo, "label", "cargo.label")
+        put(cargo, "price_per_mmbtu", "cargo.price_per_mmbtu")
+        put(cargo, "price_per_tonne", "cargo.price_per_tonne")
+        cargo["mole_fractions"] = {k: _plain(v) for k, v in
+                                   (flat.get("cargo.mole_fractions") or {}).items()}
+    else:
+        put(cargo, "fluid", "cargo.fluid")
+        put(cargo, "price_per_mmbtu", "cargo.price_per_mmbtu")
+        put(cargo, "price_per_tonne", "cargo.price_per_tonne")
+    data["cargo"] = cargo
 
     tank: dict[str, Any] = {}
     put(tank, "shape", "tank.shape")
@@ -472,6 +602,8 @@ def field_of_problem(problem: str) -> str | None:
         return "outage"
     if head.startswith("mixing") or problem.startswith("Mixing on days"):
         return "mixing.days"
+    if "cargo.mole_fractions" in head:
+        return "cargo.mole_fractions"
     if head.startswith("insulation") and head.rstrip(":") == "insulation":
         return "insulation.basis"
     if head in FIELDS:

@@ -76,6 +76,147 @@ def headlines(summary: dict) -> list[Headline]:
     ]
 
 
+def no_energy_reason(summary: dict) -> str:
+    """Why a run has no energy figures: the components without an ISO 6976 heating value."""
+    from sim.energy import component_gross_molar
+
+    names = [c for c in summary.get("initial_composition") or {}
+             if component_gross_molar(c) is None]
+    return f"no ISO 6976 heating value for {', '.join(names) or summary.get('cargo', 'the cargo')}"
+
+
+def energy_headlines(summary: dict) -> list[Headline]:
+    """Energy loaded, lost and delivered (GJ and MMBtu) and the value of the cargo lost.
+
+    Values the engine leaves as None read "—", with the reason in the note.
+    """
+    stopped = summary.get("status") != "completed"
+    loaded, lost = _num(summary.get("energy_loaded_gj")), _num(summary.get("energy_lost_gj"))
+    delivered = _num(summary.get("energy_delivered_gj"))
+    reason = no_energy_reason(summary)
+    items = []
+    if loaded is None:
+        items.append(Headline("energy_loaded", "Energy loaded", "—", reason,
+                              "Gross heating value of the cargo on board at departure "
+                              "(and loaded at port calls)."))
+    else:
+        items.append(Headline("energy_loaded", "Energy loaded", f"{loaded:,.0f} GJ",
+                              f"{summary['energy_loaded_mmbtu']:,.0f} MMBtu",
+                              "Gross heating value of the cargo on board at departure "
+                              "(and loaded at port calls)."))
+    if lost is None:
+        items.append(Headline("energy_lost", "Energy lost", "—", reason,
+                              "Gross heating value of the cargo burned as fuel, oxidised "
+                              "and vented."))
+    else:
+        share = f", {100.0 * lost / loaded:.3f} % of loaded" if loaded else ""
+        sinks = summary.get("energy_lost_by_sink_gj") or {}
+        split = ", ".join(f"{k} {v:,.0f} GJ" for k, v in sinks.items())
+        items.append(Headline("energy_lost", "Energy lost", f"{lost:,.0f} GJ",
+                              f"{summary['energy_lost_mmbtu']:,.0f} MMBtu{share}",
+                              "Gross heating value of the cargo burned as fuel, oxidised "
+                              f"and vented ({split}). Reliquefied vapour is not lost."))
+    discharged = (_num(summary.get("delivered_t")) or 0.0) > 0.0
+    where = ("discharged at port calls" if discharged else
+             "left on board at stop" if stopped else "on board on arrival")
+    if delivered is None:
+        items.append(Headline("energy_delivered", "Energy delivered", "—", reason,
+                              "Gross heating value of the cargo discharged, or on board at the "
+                              "end when the voyage has no port call."))
+    else:
+        items.append(Headline("energy_delivered", "Energy delivered", f"{delivered:,.0f} GJ",
+                              f"{summary['energy_delivered_mmbtu']:,.0f} MMBtu, {where}",
+                              "Gross heating value of the cargo discharged, or on board at the "
+                              "end when the voyage has no port call."))
+    value = _num(summary.get("value_lost"))
+    if value is None:
+        note = ("no price set (Set-up, cargo prices)" if loaded is not None
+                else "no price per tonne set (Set-up, cargo prices)")
+        items.append(Headline("value_lost", "Value of cargo lost", "—", note,
+                              "Cargo lost priced per MMBtu (gross) or, failing that, per "
+                              "tonne; in the currency of the price."))
+    else:
+        items.append(Headline("value_lost", "Value of cargo lost", f"{value:,.0f}",
+                              f"at the {summary['value_lost_basis']}"
+                              if summary.get("value_lost_basis") else "",
+                              "Cargo lost priced per MMBtu (gross) or, failing that, per "
+                              "tonne; in the currency of the price."))
+    return items
+
+
+#: Rows of the quality table: (row label with unit, quality key, number format).
+QUALITY_ROWS: tuple[tuple[str, str, str], ...] = (
+    ("GCV, mass basis (MJ/kg)", "gcv_mj_kg", "{:.3f}"),
+    ("NCV, mass basis (MJ/kg)", "ncv_mj_kg", "{:.3f}"),
+    ("GCV, volume basis (MJ/m³)", "gcv_mj_m3", "{:.3f}"),
+    ("NCV, volume basis (MJ/m³)", "ncv_mj_m3", "{:.3f}"),
+    ("Wobbe index (MJ/m³)", "wobbe_mj_m3", "{:.3f}"),
+    ("Relative density (–)", "relative_density", "{:.4f}"),
+    ("Molar mass (kg/kmol)", "molar_mass_kg_kmol", "{:.3f}"),
+)
+
+
+def end_words(summary: dict) -> str:
+    """Heading of the end-of-run column: on arrival, at a stop, or the heel after a discharge."""
+    if summary.get("status") != "completed":
+        return "At stop"
+    if (_num(summary.get("delivered_t")) or 0.0) > 0.0:
+        return "End (heel)"
+    return "On arrival"
+
+
+def _signed(fmt: str, x: float) -> str:
+    """A change with its sign; one that rounds to nothing reads as an unsigned zero."""
+    text = fmt.replace("{:", "{:+", 1).format(x)
+    return text[1:] if float(text.replace(",", "")) == 0.0 else text
+
+
+def quality_table(summary: dict, timeseries: pd.DataFrame) -> pd.DataFrame:
+    """Cargo quality as loaded and at the end, as text: heating values, Wobbe index,
+    relative density, molar mass (summary's ``quality_start`` / ``quality_arrival``),
+    liquid density and bubble temperature (first and last time-series rows).
+    """
+    end = end_words(summary)
+    q0, q1 = summary.get("quality_start"), summary.get("quality_arrival")
+    rows = []
+    for label, key, fmt in QUALITY_ROWS:
+        if q0 is None or q1 is None:
+            rows.append((label, "—", "—", "—"))
+            continue
+        a, b = float(q0[key]), float(q1[key])
+        rows.append((label, fmt.format(a), fmt.format(b), _signed(fmt, b - a)))
+    for label, column, fmt in (("Liquid density (kg/m³)", "liquid_density_kg_m3", "{:.2f}"),
+                               ("Bubble temperature (°C)", "liquid_temp_c", "{:.2f}")):
+        if column not in timeseries:
+            continue
+        a, b = float(timeseries[column].iloc[0]), float(timeseries[column].iloc[-1])
+        rows.append((label, fmt.format(a), fmt.format(b), _signed(fmt, b - a)))
+    frame = pd.DataFrame(rows, columns=["Quality", "Loaded", end, "Change"]).set_index("Quality")
+    return frame
+
+
+def composition_table(summary: dict) -> pd.DataFrame:
+    """Liquid composition loaded and at the end, and the voyage-mean boil-off, in mol % (text)."""
+    end = end_words(summary)
+    start = summary.get("initial_composition") or {}
+    arrival = summary.get("arrival_composition") or {}
+    bog = summary.get("bog_composition_mean")
+    from sim.cargo import CATALOGUE
+
+    rows = []
+    for name in start:
+        a, b = 100.0 * start[name], 100.0 * arrival.get(name, float("nan"))
+        mean = "—" if bog is None else f"{100.0 * bog.get(name, 0.0):.4f}"
+        words = CATALOGUE[name].label if name in CATALOGUE else name
+        rows.append((words, f"{a:.4f}", f"{b:.4f}", _signed("{:.4f}", b - a), mean))
+    return pd.DataFrame(rows, columns=[COMPOSITION_INDEX, "Loaded", end, "Change",
+                                       "Boil-off, mean"]).set_index(COMPOSITION_INDEX)
+
+
+#: Index heading of the composition table (its values are mole percent).
+COMPOSITION_INDEX = "Component, mol %"
+
+
 #: Rows of the comparison table: (row label with unit, summary key, number format).
 COMPARE_ROWS: tuple[tuple[str, str, str], ...] = (
     ("Relief valve first lifts (h)", "time_to_relief_h", "{:.1f}"),
@@ -93,6 +234,11 @@ COMPARE_ROWS: tuple[tuple[str, str, str], ...] = (
     ("Vented (t)", "vented_t", "{:,.1f}"),
     ("Mean BOR (%/day)", "mean_bor_pct_day", "{:.4f}"),
     ("Reliquefaction energy (kWh)", "reliquefaction_energy_kwh", "{:,.0f}"),
+    ("Energy loaded (GJ)", "energy_loaded_gj", "{:,.0f}"),
+    ("Energy lost (GJ)", "energy_lost_gj", "{:,.0f}"),
+    ("Energy lost (MMBtu)", "energy_lost_mmbtu", "{:,.0f}"),
+    ("Value of cargo lost", "value_lost", "{:,.0f}"),
+    ("GCV on arrival (MJ/kg)", "gcv_arrival_mj_kg", "{:.3f}"),
     ("Days simulated", "simulated_days", "{:.2f}"),
 )
 

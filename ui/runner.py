@@ -46,14 +46,21 @@ class Check:
 def check(data: dict, extra_problems: list[str] | None = None) -> Check:
     """Validate a scenario dict and, if valid, work out its derived facts."""
     out = Check(problems=list(extra_problems or []))
-    fluid = (data.get("cargo") or {}).get("fluid") if isinstance(data.get("cargo"), dict) else None
+    cargo = data.get("cargo") if isinstance(data.get("cargo"), dict) else {}
+    fluid = cargo.get("fluid")
     try:
         if isinstance(fluid, str):
             from sim.cargo import CATALOGUE
 
             if fluid in CATALOGUE:
                 cargo_properties(fluid)
-        scenario = parse_scenario(data, "")
+        if isinstance(cargo.get("mole_fractions"), dict) and len(cargo["mole_fractions"]) > 1:
+            # a new composition costs about a second (its bubble curve); the engine caches it,
+            # and the spinner only shows when it takes that long
+            with st.spinner("Working out the mixture's bubble curve…"):
+                scenario = parse_scenario(data, "")
+        else:
+            scenario = parse_scenario(data, "")
     except ScenarioError as exc:
         out.problems.extend(exc.problems)
         return out

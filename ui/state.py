@@ -6,6 +6,8 @@ a hidden field), so the set-up lives in plain session keys of its own:
 * ``_form``: scalar field values by dotted parameter name (the widget keys);
 * ``_legs`` / ``_outages``: the current tables, and ``*_base`` the tables the
   editors were opened with (an editor keeps only its edits to that base);
+* ``_mix_base``: the composition table its editor was opened with (the
+  composition itself is ``_form["cargo.mole_fractions"]``);
 * ``runs``: kept runs by id, in the order they were made.
 
 Widgets are seeded from these keys whenever they are drawn afresh.
@@ -27,8 +29,9 @@ from . import form
 FORM, LEGS, LEGS_BASE = "_form", "_legs", "_legs_base"
 OUTAGES, OUTAGES_BASE = "_outages", "_outages_base"
 RUNS, ORIGIN, NOTICE = "runs", "_origin", "_notice"
-#: Widget keys of the two editable tables (the parameter names of the tables).
+#: Widget keys of the editable tables (the parameter names of the tables).
 LEG_EDITOR, OUTAGE_EDITOR = "leg", "outage"
+MIX_EDITOR, MIX_BASE = "cargo.mole_fractions", "_mix_base"
 
 
 @dataclass
@@ -87,7 +90,7 @@ def put_setup(data: dict, origin: str) -> None:
     ss[LEGS] = ss[LEGS_BASE] = legs
     ss[OUTAGES] = ss[OUTAGES_BASE] = outages
     ss[ORIGIN] = origin
-    for key in list(form.FIELDS) + [LEG_EDITOR, OUTAGE_EDITOR]:
+    for key in list(form.FIELDS) + [LEG_EDITOR, OUTAGE_EDITOR, MIX_EDITOR]:
         if key in ss:
             del ss[key]
 
@@ -125,6 +128,56 @@ def table_edited(editor_key: str, frame: pd.DataFrame) -> None:
     """Store the table an editor returned."""
     ss = st.session_state
     ss[LEGS if editor_key == LEG_EDITOR else OUTAGES] = frame
+
+
+def composition_base() -> pd.DataFrame:
+    """The table the composition editor is drawn on (rebuilt when the editor opens afresh)."""
+    ss = st.session_state
+    if MIX_EDITOR not in ss or MIX_BASE not in ss:
+        ss[MIX_BASE] = form.composition_frame(ss[FORM].get("cargo.mole_fractions"))
+    return ss[MIX_BASE]
+
+
+def composition_edited(frame: pd.DataFrame) -> None:
+    """Store the composition the editor returned (as file fractions).
+
+    Only rows the user changed are converted back from percent, so a fraction
+    loaded from a file with more digits than the table shows stays exactly as
+    written.
+    """
+    ss = st.session_state
+    before = ss[FORM].get("cargo.mole_fractions") or {}
+    base = ss.get(MIX_BASE)
+    if base is None:
+        ss[FORM]["cargo.mole_fractions"] = form.fractions_from_frame(frame)
+        return
+    typed = form.fractions_from_frame(frame)
+    out = {}
+    for name in frame.index:
+        old, new = base.at[name, "mol_pct"], frame.at[name, "mol_pct"]
+        same = (pd.isna(old) and pd.isna(new)) or old == new
+        if same and name in before:
+            out[name] = before[name]
+        elif name in typed:
+            out[name] = typed[name]
+    ss[FORM]["cargo.mole_fractions"] = out
+
+
+def pending_composition() -> dict[str, float]:
+    """The composition with the editor's latest edits, for callbacks (they run before it draws)."""
+    ss = st.session_state
+    if MIX_EDITOR in ss and MIX_BASE in ss:
+        return form.fractions_from_frame(form.apply_edits(ss[MIX_BASE], ss[MIX_EDITOR]))
+    return dict(ss[FORM].get("cargo.mole_fractions") or {})
+
+
+def set_composition(fractions: dict[str, float]) -> None:
+    """Replace the composition; the editor redraws from it. Call from a callback."""
+    ss = st.session_state
+    ss[FORM]["cargo.mole_fractions"] = dict(fractions)
+    for key in (MIX_EDITOR, MIX_BASE):
+        if key in ss:
+            del ss[key]
 
 
 def run_id(toml_text: str) -> str:

@@ -64,6 +64,20 @@ def headline_grid(summary: dict, per_row: int = 3) -> None:
                 st.caption(item.note)
 
 
+def energy_grid(summary: dict) -> None:
+    """Energy loaded, lost, delivered and the value lost, one row of metric cards."""
+    from .headline import energy_headlines
+
+    items = energy_headlines(summary)
+    for col, item in zip(st.columns(len(items)), items, strict=True):
+        with col.container(border=True):
+            st.metric(item.label, item.value, help=item.help)
+            st.caption(item.note)
+    if summary.get("energy_reference"):
+        st.caption(f"Energy as gross heating value: {summary['energy_reference']}."
+                   .replace("degC", "°C"))
+
+
 def status_banner(result) -> None:
     """Say plainly when a run did not reach the end of the voyage."""
     if result.status == "completed":

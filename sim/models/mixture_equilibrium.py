@@ -51,14 +51,21 @@ import numpy as np
 from ..mixture_table import MixtureTable, node_temperatures
 from .equilibrium import TankState
 
-#: Largest change of any liquid mole fraction from the table's reference
-#: before the table is rebuilt [-]. The first-order corrections leave an error
-#: of order drift^2 (tests compare with CoolProp HEOS closed-tank states).
-DRIFT_TOLERANCE = 2e-3
+#: First allowed change of any liquid mole fraction from the table's reference
+#: before the table is rebuilt [-]. Afterwards the allowance adapts (see
+#: :meth:`MixtureEquilibriumModel.refresh`).
+DRIFT_TOLERANCE = 1e-3
+#: Rebuilding the table moves the computed pressure by the table's error at
+#: that drift; the drift allowance is scaled so this jump stays near this
+#: relative size [-] (5e-4: about 55 Pa at 1.1 bar abs).
+PRESSURE_JUMP_TARGET = 5e-4
+#: Bounds of the adaptive drift allowance [-].
+DRIFT_TOLERANCE_RANGE = (2.5e-4, 1e-2)
 #: A rebuilt table spans this far below / above the current temperature [K].
-REFRESH_SPAN = (4.0, 8.0)
-#: Spline node spacing of rebuilt tables [K].
-REFRESH_SPACING = 2.0
+REFRESH_SPAN = (3.0, 9.0)
+#: Spline node spacing of rebuilt tables [K] (the as-loaded table's 3.3 K
+#: spacing reproduces CoolProp to 1e-6; tests check 0.1 %).
+REFRESH_SPACING = 3.0
 
 
 class MixtureStateError(ValueError):
@@ -98,6 +105,8 @@ class MixtureEquilibriumModel:
         self.limits = limits or (table.temperature_min, table.temperature_max)
         self.state_names = tuple(f"moles_{c}" for c in self.components) + ("internal_energy",)
         self.refreshes = 0
+        self.drift_tolerance = DRIFT_TOLERANCE
+        self.largest_jump = 0.0
         self.warnings: list[str] = []
         self._guess = None
 
@@ -338,13 +347,22 @@ class MixtureEquilibriumModel:
         # Near the as-loaded range's ends there is no wider table to move to.
         lo = self.table.temperature_min if self.table.temperature_min > self.limits[0] else -1e9
         hi = self.table.temperature_max if self.table.temperature_max < self.limits[1] else 1e9
-        return max(drift / DRIFT_TOLERANCE - 1.0, (t - hi) / 0.5, (lo - t) / 0.5)
+        return max(drift / self.drift_tolerance - 1.0, (t - hi) / 0.5, (lo - t) / 0.5)
 
     def refresh(self, y) -> None:
-        """Rebuild the table around the current liquid and temperature."""
+        """Rebuild the table around the current liquid and temperature.
+
+        The pressure computed for the same state before and after the rebuild
+        differs by the old table's error at the drift reached. That error is
+        first order in the drift, so the drift allowance is scaled by
+        ``PRESSURE_JUMP_TARGET / jump`` (at most halved or doubled per rebuild,
+        within ``DRIFT_TOLERANCE_RANGE``): few rebuilds where the tables stay
+        good (methane and ethane), more where they do not (nitrogen).
+        """
         state = self.evaluate(y, 300.0, 300.0)
         x = np.maximum(state._extra["x"], 1e-15)
         t = state.liquid_temperature
+        drifted = float(np.max(np.abs(state._extra["x"] - self.table.reference)))
         lo = max(t - REFRESH_SPAN[0], self.limits[0])
         hi = min(t + REFRESH_SPAN[1], self.limits[1])
         self.table = MixtureTable(
@@ -352,6 +370,12 @@ class MixtureEquilibriumModel:
             backends=(self.table.backend,),
         )
         self.refreshes += 1
+        jump = abs(math.log(self.evaluate(y, 300.0, 300.0).pressure / state.pressure))
+        self.largest_jump = max(self.largest_jump, jump)
+        if drifted >= 0.5 * self.drift_tolerance:  # a drift rebuild, not a range one
+            factor = min(max(PRESSURE_JUMP_TARGET / max(jump, 1e-12), 0.5), 2.0)
+            low, high = DRIFT_TOLERANCE_RANGE
+            self.drift_tolerance = min(max(self.drift_tolerance * factor, low), high)
 
     def context(self):
         """What :meth:`use` needs to evaluate states of the current segment later."""

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import streamlit as st
 
+from sim.energy import REFERENCE_TEXT
 from sim.models import MODEL_DESCRIPTIONS
 
 TEXT = r"""
@@ -59,6 +60,41 @@ tests: `docs/two-zone.md`.
 On the Results page, **Tank model comparison** runs the same voyage under the
 other model and overlays both pressure curves with both relief-lift times.
 
+### Mixture cargoes (LNG, LPG blends)
+
+A mixture is given by the mole fractions of its liquid as loaded. The tank
+starts with the liquid at its **bubble point** at the departure pressure and
+the vapour in equilibrium with it. The equilibrium model then keeps the moles
+of every component and the energy of the tank: liquid and vapour share one
+temperature and are in phase equilibrium, and vapour leaving the tank carries
+the composition of that equilibrium vapour.
+
+The lightest components boil off first. In LNG the boil-off is far richer in
+**nitrogen** and **methane** than the liquid (a liquid with under 1 % nitrogen
+can give off vapour with well over 10 % nitrogen); in LPG blends, propane
+leaves ahead of the butanes. The liquid left behind slowly **weathers**: it
+loses its light ends, so its bubble temperature at a given pressure rises,
+and its **heating value per cubic metre of gas and its Wobbe index rise**. Per
+kilogram the heating value rises while nitrogen is leaving (nitrogen does not
+burn), but falls slightly once the boil-off is mostly methane, because the
+heavier hydrocarbons that stay behind carry less energy per kilogram. The
+liquid density follows both the composition and the temperature: losing
+methane makes the liquid denser, while losing (dense) liquid nitrogen and
+warming to a higher bubble point make it lighter. The Results page shows the
+liquid and boil-off composition over the voyage and the cargo quality as
+loaded and on arrival.
+
+Energy figures (loaded, lost, delivered; calorific values and Wobbe index)
+use the ISO 6976 method at one set of reference conditions: __REFERENCE__.
+Components without an ISO 6976 value (ethylene, propylene, and pure cargoes
+such as ammonia or hydrogen) have no energy figures; the value of cargo lost
+then uses the price per tonne.
+
+A mixture runs with the equilibrium model only. A mixture of one component
+is exactly the pure cargo, which follows the single-component path:
+saturation properties of the pure fluid, with the vapour the same as the
+liquid.
+
 ### Heat in
 
 $$\dot Q = U A\,[\,f_{air}(T_{air} - T) + (1 - f_{air})(T_{sea} - T)\,]$$
@@ -105,8 +141,12 @@ loading. A fill above it is logged at the start of the run.
   insulation store no heat.
 * Identical tanks share the plant equally; one tank behaving differently is not
   represented.
-* Pure cargoes only (methane stands in for LNG, propane for LPG); no nitrogen
-  or light ends in the vapour.
+* Mixtures run with the equilibrium model only (no stratification for a
+  mixture); the two-zone model and plant sizing take pure cargoes, where
+  methane stands in for LNG and propane for LPG.
+* Heating values are gross, at the reference conditions above; contracts
+  that use other conditions (for example 25 °C combustion, 0 °C metering)
+  differ by a fraction of a percent.
 * The run stops when a tank becomes liquid-full, the pressure reaches the
   cargo's triple point, or the cargo approaches its critical point.
 
@@ -131,7 +171,7 @@ def render() -> None:
                        for name, text in MODEL_DESCRIPTIONS.items())
     text, _ = st.columns([5, 2])
     text.markdown(f"Tank models available: {models}.")
-    text.markdown(TEXT)
+    text.markdown(TEXT.replace("__REFERENCE__", REFERENCE_TEXT.replace("degC", "°C")))
 
 
 if __name__ == "__main__":

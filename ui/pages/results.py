@@ -41,7 +41,7 @@ def _downloads(run: state.Run, figures: dict) -> None:
                       data=functools.partial(exports.charts_html, figures, run.title),
                       file_name=f"{stem}-charts.html", mime="text/html", key="dl.html",
                       icon=":material/monitoring:", width="stretch",
-                      help="All four charts in one page that works offline, still interactive.")
+                      help="All the charts in one page that works offline, still interactive.")
     if exports.png_available():
         d.download_button("Pressure chart (.png)",
                           data=functools.partial(exports.chart_png, figures["pressure"]),
@@ -58,6 +58,10 @@ def _model_comparison(run: state.Run) -> None:
     this = run.data.get("model", "equilibrium")
     other = "equilibrium" if this != "equilibrium" else "two-zone"
     if other not in MODELS:
+        return
+    if charts.is_mixture(run.result):
+        st.caption("Tank model comparison: the two-zone model takes pure cargoes only, so a "
+                   "mixture has no second model to compare with.")
         return
     st.markdown("##### Tank model comparison")
     if not st.toggle(f"Overlay the same voyage with the {other} model", key="results.model_overlay",
@@ -84,6 +88,35 @@ def _model_comparison(run: state.Run) -> None:
     fig = charts.pressure_figure(pair, charts.control_levels(run.data))
     fig.update_layout(title={"text": "Tank pressure: equilibrium vs two-zone"})
     widgets.plot(fig, "chart.model_pair")
+
+
+def _mixture(run: state.Run, figures: dict) -> None:
+    """Composition over the voyage, boil-off composition, density, quality loaded vs arrival."""
+    result = run.result
+    st.markdown(f"##### Cargo composition and quality: {result.summary.get('cargo', '')}")
+    st.caption("The lightest components (nitrogen, methane; propane in LPG) boil off first, "
+               "so the liquid left behind weathers: its bubble temperature climbs and its "
+               "heating value per cubic metre and Wobbe index rise. See Methods.")
+    widgets.plot(figures["composition"], "chart.composition")
+    a, b = st.columns(2)
+    with a:
+        widgets.plot(figures["vapour_composition"], "chart.vapour_composition")
+    with b:
+        widgets.plot(figures["liquid_density_kg_m3"], "chart.liquid_density_kg_m3")
+    st.markdown("**Cargo quality, as loaded and at the end of the run**")
+    a, b = st.columns([1, 1], gap="medium")
+    quality = headline.quality_table(result.summary, result.timeseries)
+    a.dataframe(quality, key="results.quality", width="stretch",
+                height=38 + 35 * len(quality),
+                column_config={c: st.column_config.TextColumn(alignment="right")
+                               for c in quality.columns})
+    if result.summary.get("quality_start") is None:
+        a.caption(f"Heating values: none, {headline.no_energy_reason(result.summary)}.")
+    composition = headline.composition_table(result.summary)
+    b.dataframe(composition, key="results.composition", width="stretch",
+                height=38 + 35 * len(composition),
+                column_config={c: st.column_config.TextColumn(alignment="right")
+                               for c in composition.columns})
 
 
 def render() -> None:
@@ -118,6 +151,7 @@ def render() -> None:
                    "press **Run the current set-up** to see the change.")
     widgets.status_banner(result)
     widgets.headline_grid(result.summary)
+    widgets.energy_grid(result.summary)
 
     figures = charts.result_figures(run.label, result, charts.control_levels(run.data))
     widgets.plot(figures["pressure"], "chart.pressure")
@@ -127,6 +161,8 @@ def render() -> None:
     with b:
         widgets.plot(figures["fill_pct"], "chart.fill_pct")
     widgets.plot(figures["boil_off"], "chart.boil_off")
+    if charts.is_mixture(result):
+        _mixture(run, figures)
     _model_comparison(run)
 
     st.markdown("##### Events")

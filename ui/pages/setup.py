@@ -6,9 +6,11 @@ import tomllib
 
 import streamlit as st
 
+from sim.energy import REFERENCE_TEXT, quality
+from sim.presets import MIXTURE_PRESETS
 from sim.scenario import ScenarioError, default_scenario_dict, demo_scenarios, loads_scenario
 from ui import exports, form, runner, state, widgets
-from ui.form import EQUIPMENT, LEG_COLUMNS, OUTAGE_COLUMNS
+from ui.form import COMPOSITION_COLUMNS, EQUIPMENT, LEG_COLUMNS, OUTAGE_COLUMNS
 
 RESULTS_PAGE = "ui/pages/results.py"
 
@@ -87,6 +89,93 @@ def _start_row() -> None:
 
 
 # ---------------------------------------------------------------------------
+# Mixture composition (callbacks, then the editor)
+# ---------------------------------------------------------------------------
+
+
+def _fill_preset() -> None:
+    name = st.session_state.get("cargo.preset")
+    if name not in MIXTURE_PRESETS:
+        return
+    state.set_composition(MIXTURE_PRESETS[name])
+    label = st.session_state[state.FORM].get("cargo.label") or ""
+    if not label.strip() or label in MIXTURE_PRESETS:  # never overwrite a name of the user's
+        st.session_state[state.FORM]["cargo.label"] = name
+        st.session_state["cargo.label"] = name
+    state.notice(f"Composition filled from '{name}'.", "info")
+
+
+def _normalise() -> None:
+    try:
+        state.set_composition(form.normalised(state.pending_composition()))
+    except ValueError:
+        state.notice("Nothing to scale: give at least one component above 0 %.", "error")
+
+
+def _quality_preview(fractions: dict) -> None:
+    """GCV, Wobbe index and relative density of the liquid as typed (ISO 6976)."""
+    total = form.composition_sum_pct(fractions)
+    if abs(total - 100.0) > form.SUM_TOLERANCE_PCT:
+        st.caption("The heating value shows here once the fractions sum to 100 %.")
+        return
+    try:
+        q = quality({k: v for k, v in fractions.items() if v > 0.0})
+    except ValueError as exc:  # e.g. a negative entry: the engine's check names it
+        st.caption(f"No heating value: {exc}.")
+        return
+    if q is None:
+        missing = [k for k, v in fractions.items() if v > 0.0 and quality({k: 1.0}) is None]
+        st.caption(f"No ISO 6976 heating value for {', '.join(missing)}: energy figures of "
+                   "this cargo will read '—'.")
+        return
+    rows = [("GCV", f"{q['gcv_mj_kg']:.3f} MJ/kg"),
+            ("GCV, volume", f"{q['gcv_mj_m3']:.3f} MJ/m³"),
+            ("Wobbe index", f"{q['wobbe_mj_m3']:.3f} MJ/m³"),
+            ("Relative density", f"{q['relative_density']:.4f}"),
+            ("Molar mass", f"{q['molar_mass_kg_kmol']:.3f} kg/kmol")]
+    st.markdown("| As loaded | |\n|:--|--:|\n"
+                + "\n".join(f"| {a} | {b} |" for a, b in rows))
+    st.caption(REFERENCE_TEXT.replace("degC", "°C") + ".")
+
+
+def _composition():
+    """Preset picker, the composition table in mole percent, its sum and quality."""
+    a, b, c = st.columns([3, 1, 3], vertical_alignment="bottom")
+    preset = a.selectbox("Start from a composition", list(MIXTURE_PRESETS), key="cargo.preset",
+                         index=None, placeholder="choose one to fill the table…",
+                         help="Invented, representative compositions; the table stays "
+                              "editable.")
+    b.button("Fill", key="cargo.fill_preset", on_click=_fill_preset, width="stretch",
+             disabled=preset is None, help="Replace the table with the chosen composition.")
+    slot = widgets.field("cargo.label", c)
+    table, side = st.columns([1, 1], gap="medium")
+    with table:
+        edited = st.data_editor(
+            state.composition_base(), key=state.MIX_EDITOR, num_rows="fixed", hide_index=True,
+            width="stretch", height=38 + 35 * len(form.COMPONENTS),
+            column_config={
+                "name": st.column_config.TextColumn(COMPOSITION_COLUMNS["name"][0],
+                                                    help=COMPOSITION_COLUMNS["name"][1],
+                                                    disabled=True),
+                "mol_pct": st.column_config.NumberColumn(
+                    COMPOSITION_COLUMNS["mol_pct"][0], help=COMPOSITION_COLUMNS["mol_pct"][1],
+                    format="%.4f", step=0.0001),
+            })
+        state.composition_edited(edited)
+    fractions = st.session_state[state.FORM]["cargo.mole_fractions"]
+    with side:
+        total = form.composition_sum_pct(fractions)
+        good = abs(total - 100.0) <= form.SUM_TOLERANCE_PCT
+        st.markdown(f"**Sum: {total:.4f} %** " + (":green[:material/check_circle:]" if good
+                                                   else ":red[:material/error:]"))
+        st.button("Scale to 100 %", key="cargo.normalise", on_click=_normalise,
+                  disabled=good or not fractions, width="stretch",
+                  help="Scale every entry by the same factor so the sum is 100 %.")
+        _quality_preview(fractions)
+    return slot
+
+
+# ---------------------------------------------------------------------------
 # Input groups
 # ---------------------------------------------------------------------------
 
@@ -103,12 +192,28 @@ def _inputs() -> dict:
     """Draw every input; return slots for problem messages by field key."""
     slots = {}
 
-    with _group("Cargo and tanks"):
+    with _group("Cargo"):
         slots["title"] = widgets.field("title")
-        a, b, c = st.columns(3)
-        slots["cargo.fluid"] = widgets.field("cargo.fluid", a)
-        slots["model"] = widgets.field("model", b)
-        slots["mixing.days"] = widgets.field("mixing.days", c)
+        state.seed("cargo.kind")
+        st.radio(form.FIELDS["cargo.kind"].label, form.CHOICES["cargo.kind"], key="cargo.kind",
+                 help=form.FIELDS["cargo.kind"].help, horizontal=True,
+                 format_func=lambda n: form.choice_label("cargo.kind", n))
+        state.remember("cargo.kind")
+        if st.session_state[state.FORM]["cargo.kind"] == "mixture":
+            slots["cargo.label"] = _composition()
+            slots["cargo.mole_fractions"] = st.empty()
+            a, b, _ = st.columns(3)
+        else:
+            a, b, c = st.columns(3)
+            slots["cargo.fluid"] = widgets.field("cargo.fluid", a)
+            a, b = b, c
+        slots["cargo.price_per_mmbtu"] = widgets.field("cargo.price_per_mmbtu", a)
+        slots["cargo.price_per_tonne"] = widgets.field("cargo.price_per_tonne", b)
+
+    with _group("Tanks"):
+        a, b = st.columns(2)
+        slots["model"] = widgets.field("model", a)
+        slots["mixing.days"] = widgets.field("mixing.days", b)
         a, b, c = st.columns(3)
         slots["tank.shape"] = widgets.field("tank.shape", a)
         slots["tank.count"] = widgets.field("tank.count", b)
@@ -216,6 +321,7 @@ def _inputs() -> dict:
 
 
 def _facts_table(facts: dict, data: dict) -> str:
+    mixture = len(data.get("cargo", {}).get("mole_fractions") or {}) > 1
     tank = data.get("tank", {})
     count = int(tank.get("count", 1))
     fill = float(tank.get("fill_pct", 0.0))
@@ -225,7 +331,7 @@ def _facts_table(facts: dict, data: dict) -> str:
     rows = [
         ("Tank volume", each if count == 1 else f"{count} × {each}"),
         ("Cargo on board", f"{facts['initial_cargo_t']:,.0f} t"),
-        ("Boiling point", f"{facts['boiling_point_c']:.2f} °C"),
+        ("Bubble point" if mixture else "Boiling point", f"{facts['boiling_point_c']:.2f} °C"),
         ("Liquid density", f"{facts['liquid_density_kg_m3']:.1f} kg/m³"),
         ("IGC loading limit", f"{facts['loading_limit_pct']:.2f} %"),
         ("Fill at departure", f"{fill:.2f} %"),
