@@ -140,6 +140,11 @@ class _Voyage:
                 shape=self.shape, gross_molar=self.gross_molar,
                 limits=(self.table.temperature_min, self.table.temperature_max),
             )
+            if self.model.table.backend != "HEOS":
+                self.model.warnings.append(
+                    f"mixture properties from {self.model.table.backend} (Peng-Robinson): "
+                    "CoolProp's HEOS mixture model has no parameters for this composition; "
+                    "liquid densities of a cubic equation of state can be ~10 % high")
         self.n_model = len(self.model.state_names)
         self.delivered_energy = 0.0
         self.loaded_energy = 0.0
