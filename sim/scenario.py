@@ -764,6 +764,14 @@ class _Checker:
         """Check a pressure lies where the cargo can be liquid; report if not."""
         pressure = barg_to_pa(barg)
         cargo = table.cargo.label[0].lower() + table.cargo.label[1:]
+        if pressure > table.pressure_max and not math.isfinite(table.temperature_critical):
+            self.add(
+                f"{path} = {_show(raw)}: above the highest pressure covered for {cargo} "
+                f"(its bubble point at {_bar(table.pressure_max)} bar abs, "
+                f"{k_to_c(table.temperature_max):.1f} degC); the highest usable pressure is "
+                f"{_floor2(pa_to_barg(table.pressure_max))} barg"
+            )
+            return False
         if pressure > table.pressure_max:
             self.add(
                 f"{path} = {_show(raw)}: {cargo} has no liquid above its critical point "
@@ -780,6 +788,13 @@ class _Checker:
                     f"({_bar(table.pressure_triple)} bar abs, "
                     f"{k_to_c(table.temperature_triple):.1f} degC): solid "
                     f"{table.cargo.formula} would form; the lowest usable pressure is "
+                    f"{lowest} barg"
+                )
+            elif not math.isfinite(table.temperature_critical):  # a mixture's table
+                self.add(
+                    f"{path} = {_show(raw)}: below the lowest pressure covered for {cargo} "
+                    f"(its bubble point at {_bar(table.pressure_min)} bar abs, "
+                    f"{k_to_c(table.temperature_min):.1f} degC); the lowest usable pressure is "
                     f"{lowest} barg"
                 )
             else:

@@ -140,6 +140,7 @@ class _Voyage:
                 shape=self.shape, gross_molar=self.gross_molar,
                 limits=(self.table.temperature_min, self.table.temperature_max),
             )
+            self._warn_solids(scenario)
             if self.model.table.backend != "HEOS":
                 self.model.warnings.append(
                     f"mixture properties from {self.model.table.backend} (Peng-Robinson): "
@@ -172,6 +173,23 @@ class _Voyage:
         self.rhs_calls = 0
         self.delivered_t = 0.0
         self.loaded_t = 0.0
+
+    def _warn_solids(self, scenario: Scenario) -> None:
+        """Warn where carbon dioxide in a cold liquid may freeze out (not modelled)."""
+        from .mixture import _state
+
+        co2 = dict(scenario.mole_fractions).get("carbon-dioxide", 0.0)
+        if co2 <= 0.0:
+            return
+        t_liquid = self.table.temperature(scenario.tank.pressure)
+        t_triple = _state("HEOS", ("CarbonDioxide",), "any").Ttriple()
+        if t_liquid < t_triple:
+            self.model.warnings.append(
+                f"carbon dioxide at {1e6 * co2:.0f} ppm in a liquid at "
+                f"{t_liquid - 273.15:.1f} degC, below CO2's triple point "
+                f"({t_triple - 273.15:.1f} degC): it may freeze out (LNG specifications "
+                "commonly hold CO2 to about 50 ppm - common practice, no source); solids "
+                "are not modelled")
 
     # -- capacities and ambient ---------------------------------------------
     def leg_at(self, t: float):

@@ -320,3 +320,21 @@ def test_pure_cargo_energy_uses_iso6976():
 def test_mixture_table_refuses_missing_components():
     with pytest.raises(ValueError, match="present"):
         MixtureTable(("methane", "ethane"), (1.0, 0.0), [110, 112, 114, 116])
+
+
+def test_carbon_dioxide_in_cold_lng_is_flagged():
+    """CO2 triple point -56.6 degC (CoolProp 8.0.0 HEOS; NIST value from memory) lies far
+    above LNG temperatures: a run with CO2 in LNG carries a freeze-out warning."""
+    fractions = dict(TYPICAL)
+    fractions["methane"] -= 0.001
+    fractions["carbon-dioxide"] = 0.001
+    result = simulate(loads_scenario(_toml(fractions), "t"))
+    assert any("freeze out" in w for w in result.summary["model_warnings"])
+    plain = simulate(loads_scenario(_toml(dict(TYPICAL)), "t"))
+    assert plain.summary["model_warnings"] == []
+
+
+def test_pressure_outside_a_mixtures_table_names_its_bubble_point():
+    with pytest.raises(ScenarioError, match=r"above the highest pressure covered .* bubble point"):
+        loads_scenario(_toml(dict(TYPICAL)).replace("relief_set_barg = 0.7",
+                                                     "relief_set_barg = 80.0"), "t")

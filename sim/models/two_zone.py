@@ -383,6 +383,115 @@ def wall_excess_temperature(heat_flux: float, run_length: float, conductivity: f
     return excess, group * excess
 
 
+def dry_wall_fin_heat(heat_flux: float, gas_coefficient: float, wall_conductance: float,
+                      gas_excess: float, dry_length: float) -> float:
+    """Heat the dry wall conducts into the liquid line, per unit length of that line.
+
+    Parameters
+    ----------
+    heat_flux : float
+        Heat flux entering the dry wall from the insulation, uniform [W/m^2].
+    gas_coefficient : float
+        Wall-to-vapour heat-transfer coefficient on the dry wall [W/(m^2 K)].
+    wall_conductance : float
+        Wall conductivity times thickness, :math:`k t` [W/K].
+    gas_excess : float
+        Vapour temperature minus the wall temperature at the liquid line,
+        :math:`T_v - T_i` [K].
+    dry_length : float
+        Length of dry wall from the liquid line to the top, measured along the
+        wall [m]; its end is adiabatic (the top of the tank, a symmetry line).
+
+    Returns
+    -------
+    float
+        Heat crossing the liquid line into the wetted wall and the liquid
+        [W/m]; zero without a wall (``wall_conductance`` = 0).
+
+    Notes
+    -----
+    The dry wall is a straight fin of conductance :math:`k t` with a uniform
+    heat input :math:`q''` on one face and convection :math:`h (T - T_v)` to
+    the vapour on the other, its base held at the liquid line:
+
+    .. math::
+
+        k t \\frac{d^2 T}{dx^2} - h (T - T_v) + q'' = 0, \\quad
+        T(0) = T_i, \\quad \\frac{dT}{dx}(L) = 0.
+
+    Measured from :math:`T_\\infty = T_v + q''/h` (the wall temperature far
+    from the line), the excess :math:`\\theta = T - T_\\infty` obeys the
+    equation of a fin of uniform cross-section without heat input, so with
+    :math:`m = \\sqrt{h/(k t)}` it is the classic adiabatic-tip solution
+    :math:`\\theta/\\theta_b = \\cosh m(L-x) / \\cosh mL`,
+    :math:`\\theta_b = T_i - T_\\infty` (Incropera et al. 2007, section 3.6.2,
+    case of the adiabatic tip), and the base takes
+
+    .. math::
+
+        Q' = k t\\, m \\tanh(mL)\\, (T_\\infty - T_i)
+           = \\tanh(mL) \\left[\\frac{q''}{m} + \\sqrt{h k t}\\,(T_v - T_i)\\right].
+
+    The first term is the insulation heat falling within about :math:`1/m` of
+    the liquid line; the second is vapour heat the wall picks up near the line.
+    For :math:`h \\to 0` the first term tends to :math:`q'' L` (all dry-wall
+    heat reaches the line).
+
+    References
+    ----------
+    .. [1] F. P. Incropera, D. P. DeWitt, T. L. Bergman, A. S. Lavine,
+       Fundamentals of Heat and Mass Transfer, 6th ed., Wiley (2007),
+       section 3.6 (extended surfaces; fin of uniform cross-section with an
+       adiabatic tip). The uniform heat input enters by the shift of the
+       reference temperature to :math:`T_\\infty`.
+
+    Examples
+    --------
+    A long fin: :math:`q''/m` with :math:`m = \\sqrt{10/0.04} = 15.8` 1/m.
+
+    >>> round(dry_wall_fin_heat(2.0, 10.0, 0.04, 0.0, 5.0), 5)
+    0.12649
+    """
+    if wall_conductance <= 0.0 or dry_length <= 0.0:
+        return 0.0
+    if gas_coefficient <= 0.0:
+        return heat_flux * dry_length
+    m = math.sqrt(gas_coefficient / wall_conductance)
+    reach = math.tanh(m * dry_length)
+    return reach * (heat_flux / m + math.sqrt(gas_coefficient * wall_conductance) * gas_excess)
+
+
+def contact_line_length(shape, level: float, free_surface: float) -> float:
+    """Length of the line where the liquid surface meets the wall [m].
+
+    Parameters
+    ----------
+    shape : TankShape
+        Tank shape (:mod:`sim.geometry`).
+    level : float
+        Liquid level [m].
+    free_surface : float
+        Free-surface area at that level [m^2].
+
+    Returns
+    -------
+    float
+        The circumference of the (circular) free surface of a sphere or a
+        vertical cylinder, :math:`2\\sqrt{\\pi S}`; for other shapes the rate of
+        change of wetted area with level, :math:`dA_w/dz`, which equals the
+        contact-line length where the wall is vertical and exceeds it where
+        the wall slopes (an upper bound).
+    """
+    if getattr(shape, "name", "") in ("sphere", "vertical-cylinder"):
+        return 2.0 * math.sqrt(math.pi * free_surface)
+    top = float(shape.height())
+    step = 1e-4 * top
+    lo, hi = max(level - step, 0.0), min(level + step, top)
+    if hi <= lo:
+        return 0.0
+    return float(shape.wetted_area(hi) - shape.wetted_area(lo)) / (hi - lo)
+
+
 # ---------------------------------------------------------------------------
 # Transport properties along the saturation line
 
@@ -586,10 +695,16 @@ class TwoZoneModel:
                    "bulk_liquid_temperature", "layer_excess")
 
     def __init__(self, table: SaturationTable, volume: float, ua_air: float, ua_sea: float,
-                 shape=None):
+                 shape=None, wall_thickness: float = 0.0, wall_conductivity: float = 0.0):
         if shape is None:
             raise ValueError("the two-zone model needs the tank shape (wetted, dry and "
                              "free-surface areas); none was given")
+        if not (wall_thickness >= 0.0 and wall_conductivity >= 0.0):
+            raise ValueError("wall thickness and conductivity must be zero or positive, got "
+                             f"{wall_thickness!r} m and {wall_conductivity!r} W/(m K)")
+        #: Conductance of the tank wall along itself, conductivity x thickness
+        #: [W/K]; 0 (the default) leaves conduction along the wall out.
+        self.wall_conductance = float(wall_thickness) * float(wall_conductivity)
         self.table = table
         self.volume = float(volume)
         self.ua_air = float(ua_air)
@@ -830,6 +945,27 @@ class TwoZoneModel:
                        "horizontal-surface correlation (Ra above 1e10 stable / 1e11 "
                        "unstable): extrapolated")
         heat_vi = nusselt * k_v / length * surface * dt_v
+
+        # Conduction along the dry wall (a fin) into the liquid line, where it
+        # enters the liquid at the surface: taken from the vapour's share of
+        # the wall heat and delivered to the interface. Off without wall data.
+        heat_fin = 0.0
+        dry_area = self.area - wetted
+        dry_length = self.height - level  # along the wall >= this; only tanh(m L) sees it
+        if self.wall_conductance > 0.0 and dry_area > 0.0 and dry_length > 0.0:
+            flux = heat_dry / dry_area
+            gas_coefficient = 0.0
+            if flux != 0.0:
+                # wall-to-vapour coefficient: Eckert & Jackson's turbulent wall with
+                # vapour properties (g beta Pr / nu^2 = g beta / (nu alpha))
+                gas_excess, _ = wall_excess_temperature(abs(flux), dry_length, k_v, ra_v)
+                gas_coefficient = abs(flux) / gas_excess
+            line = contact_line_length(shape, level, surface)
+            heat_fin = line * dry_wall_fin_heat(flux, gas_coefficient, self.wall_conductance,
+                                                vapour_temp - t_i, dry_length)
+            heat_dry -= heat_fin
+            heat_wet += heat_fin
+            heat_top += heat_fin
 
         # Interface energy balance; when the surface is colder than the bulk,
         # ``conduction`` is negative and is heat the bulk gives up.
