@@ -163,6 +163,9 @@ class TankSpec:
     pressure : float  initial pressure, cargo saturated at it [Pa]
     relief_set_pressure : float  [Pa]
     vacuum_pressure : float  pressure below which a vacuum warning is raised [Pa]
+    wall_thickness : float  metal wall thickness [m]; 0: no conduction along the wall
+    wall_conductivity : float  wall thermal conductivity at cargo temperature [W/(m K)];
+        0: no conduction along the wall (used by the two-zone model only)
     """
 
     shape: object
@@ -171,6 +174,8 @@ class TankSpec:
     pressure: float
     relief_set_pressure: float
     vacuum_pressure: float
+    wall_thickness: float = 0.0
+    wall_conductivity: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -375,6 +380,12 @@ SCHEMA: dict[str, dict[str, KeySpec]] = {
                       required=True),
         _pressure_key("vacuum_barg", "vacuum warning level, gauge pressure in bar",
                       default=DEFAULT_VACUUM_BARG),
+        KeySpec("wall_thickness_mm", "metal tank wall thickness in mm, for conduction along "
+                "the wall (two-zone model; give with wall_conductivity_w_mk)", low=0.0,
+                unit="mm"),
+        KeySpec("wall_conductivity_w_mk", "thermal conductivity of the tank wall at cargo "
+                "temperature in W/(m K) (two-zone model; give with wall_thickness_mm)",
+                low=0.0, unit="W/(m K)"),
     ),
     "insulation": _specs(
         KeySpec("u_w_m2k", "overall heat-transfer coefficient in W/(m2 K)", low=0.0,
@@ -1063,8 +1074,21 @@ def _parse_tank(check: _Checker, data: dict, table: SaturationTable | None):
                   f"{_show(tank['pressure_barg'])}: the vacuum warning level lies under the "
                   "initial pressure")
 
+    # Conduction along the wall needs both numbers; neither: no wall conduction.
+    wall_keys = ("wall_thickness_mm", "wall_conductivity_w_mk")
+    wall = [0.0, 0.0]
+    for i, key in enumerate(wall_keys):
+        if key in tank:
+            wall[i] = check.number(tank, "tank", spec[key])
+            other = wall_keys[1 - i]
+            if other not in tank:
+                check.add(f"tank.{key} = {_show(tank[key])} needs tank.{other} as well "
+                          "(conduction along the wall takes both the thickness and the "
+                          "conductivity; give both or neither)")
+                wall[i] = None
+
     values.update(pressure_barg=pressure, relief_set_barg=relief)
-    if None in (shape, count, fill, pressure, relief, vacuum):
+    if None in (shape, count, fill, pressure, relief, vacuum, *wall):
         return None, values
     return TankSpec(
         shape=shape,
@@ -1073,6 +1097,8 @@ def _parse_tank(check: _Checker, data: dict, table: SaturationTable | None):
         pressure=barg_to_pa(pressure),
         relief_set_pressure=barg_to_pa(relief),
         vacuum_pressure=barg_to_pa(vacuum),
+        wall_thickness=wall[0] / 1000.0,
+        wall_conductivity=wall[1],
     ), values
 
 

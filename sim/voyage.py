@@ -128,8 +128,12 @@ class _Voyage:
         ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
         self.gross_molar = _gross_molar_values(scenario)
         if scenario.mole_fractions is None:
+            # conduction along the tank wall is a two-zone feature (off unless given)
+            wall = ({"wall_thickness": tank.wall_thickness,
+                     "wall_conductivity": tank.wall_conductivity}
+                    if scenario.model == "two-zone" else {})
             self.model = MODELS[scenario.model](
-                self.table, self.volume, ua_air, ua_sea, shape=self.shape
+                self.table, self.volume, ua_air, ua_sea, shape=self.shape, **wall
             )
         else:
             from .mixture_table import loaded_mixture_tables

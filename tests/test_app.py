@@ -303,6 +303,16 @@ def test_saved_set_up_loads_back_identically(stem):
     assert again == setup  # saving a loaded save changes nothing
 
 
+def test_wall_keys_survive_the_form():
+    data = demo_data("propane-type-c-stratified-mixing")
+    data["tank"].update(wall_thickness_mm=12.0, wall_conductivity_w_mk=40.0)
+    setup, problems = form.dict_from_form(*form.flat_from_dict(data))
+    assert problems == []
+    assert setup["tank"]["wall_thickness_mm"] == 12.0
+    assert setup["tank"]["wall_conductivity_w_mk"] == 40.0
+    assert parse_scenario(setup).tank.wall_thickness == pytest.approx(0.012)
+
+
 def test_form_leaves_out_what_the_set_up_does_not_use():
     data = default_scenario_dict()
     flat, legs, outages = form.flat_from_dict(data)

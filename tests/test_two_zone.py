@@ -21,10 +21,22 @@ from sim.models import MODEL_DESCRIPTIONS, MODELS
 from sim.models.two_zone import (
     TwoZoneModel,
     boundary_layer_heat_share,
+    contact_line_length,
     horizontal_surface_nusselt,
     wall_excess_temperature,
+    wall_line_heat,
 )
-from sim.scenario import Insulation, Leg, Outage, Reliquefaction, Scenario, TankSpec
+from sim.scenario import (
+    Insulation,
+    Leg,
+    Outage,
+    Reliquefaction,
+    Scenario,
+    ScenarioError,
+    TankSpec,
+    default_scenario_dict,
+    parse_scenario,
+)
 from sim.units import SECONDS_PER_DAY, barg_to_pa, c_to_k
 from sim.voyage import simulate
 
@@ -126,6 +138,109 @@ def test_wall_excess_satisfies_eckert_jackson_nusselt_with_coolprop_properties()
     assert 0.0 < excess < 0.1
 
 
+def _wall_by_finite_differences(kt, q_d, h_d, length, dv, h_l, dtw, theta, delta,
+                                deep=3.0, cells=30000):
+    """Reference for wall_line_heat: the joined fin solved by finite volumes.
+
+    One coordinate s along the wall, s < 0 dry (top adiabatic at s = -length),
+    s > 0 wetted (wall at the far-field value T_b + dTw at s = deep), all
+    temperatures from the surface temperature. Returns the conducted heat
+    at s = 0 and at s = delta [W/m] (flowing toward +s).
+    """
+    from scipy.linalg import solve_banded
+
+    s = np.linspace(-length, deep, cells + 1)  # cell faces
+    ds = s[1] - s[0]
+    mid = 0.5 * (s[:-1] + s[1:])  # cell centres
+    n = mid.size
+    liquid = np.full(n, -theta)  # the bulk, theta below the surface
+    inside = (mid >= 0) & (mid < delta)
+    liquid[inside] += theta * (1 - mid[inside] / delta) ** 2  # quadratic warm layer
+    coeff = np.where(mid < 0, h_d, h_l)
+    source = np.where(mid < 0, h_d * dv + q_d, h_l * (liquid + dtw))
+    g = kt / ds**2
+    bands = np.zeros((3, n))
+    bands[0, 1:] = -g
+    bands[1] = 2 * g + coeff
+    bands[2, :-1] = -g
+    bands[1, 0] -= g  # adiabatic top: ghost cell equal to the first cell
+    bands[1, -1] += g  # far end held at -theta + dtw: ghost = 2 w_b - w_N
+    rhs = source.copy()
+    rhs[-1] += 2 * g * (-theta + dtw)
+    w = solve_banded((1, 1), bands, rhs)
+
+    def flux_at(x):
+        i = int(np.searchsorted(mid, x)) - 1
+        return -kt * (w[i + 1] - w[i]) / (mid[i + 1] - mid[i])
+
+    return flux_at(0.0), flux_at(delta)
+
+
+@pytest.mark.parametrize("case", [
+    # kt [W/K], q_d [W/m^2], h_d, L [m], Tv-Ti [K], h_l [W/(m^2 K)], dTw [K], theta [K], delta [m]
+    (0.04, 2.0, 15.0, 1.5, 0.8, 70.0, 0.03, 0.8, 0.22),   # the LH2 test tank, stratified
+    (0.04, 2.0, 15.0, 1.5, 0.0, 70.0, 0.03, 0.0, 0.0),    # unstratified
+    (0.12, 2.0, 15.0, 0.05, 0.5, 70.0, 0.03, 1.0, 0.01),  # short dry wall, layer thinner than 1/m_l
+    (0.04, 2.0, 15.0, 1.0, -0.3, 200.0, 0.01, 0.5, 0.4),  # vapour colder than the surface
+])
+def test_wall_line_heat_matches_finite_difference_solution(case):
+    # Parameters are test values of the size found in the LH2 validation
+    # runs (common practice, no source); the reference is an independent
+    # finite-volume solution of the same joined-fin problem.
+    kt, q_d, h_d, length, dv, h_l, dtw, theta, delta = case
+    across, below = wall_line_heat(kt, q_d, h_d, length, dv, h_l, dtw, theta, delta)
+    ref_across, ref_below = _wall_by_finite_differences(kt, q_d, h_d, length, dv, h_l, dtw,
+                                                        theta, delta)
+    # tolerance: second-order finite volumes on 30 000 cells, relative to the
+    # largest of the two heats (one may be near zero)
+    scale = max(abs(ref_across), abs(ref_below))
+    assert across == pytest.approx(ref_across, abs=2e-3 * scale)
+    assert below == pytest.approx(ref_below, abs=2e-3 * scale)
+
+
+def test_wall_line_heat_limits():
+    # no wall, no conduction
+    assert wall_line_heat(0.0, 2.0, 15.0, 1.0, 1.0, 70.0, 0.03, 1.0, 0.2) == (0.0, 0.0)
+    # long dry fin into a liquid that takes all heat at the line: q''/m + sqrt(h k t) (Tv - Ti)
+    # (Incropera et al. 2007, section 3.6, infinite fin; closed form)
+    kt, q, h, dv = 0.04, 2.0, 15.0, 0.5
+    across, below = wall_line_heat(kt, q, h, 50.0, dv, 1e12, 0.0, 0.0, 0.0)
+    expected = q / math.sqrt(h / kt) + math.sqrt(h * kt) * dv
+    assert across == pytest.approx(expected, rel=1e-4)  # 1e-4: the finite h_l
+    assert below == pytest.approx(across, rel=1e-12)  # no layer: all of it below
+
+
+def test_contact_line_length_of_a_sphere():
+    sphere = Sphere(2.0)
+    level = 0.6  # m; circle of radius sqrt(z (2r - z)) (closed form)
+    expected = 2 * math.pi * math.sqrt(level * (2.0 - level))
+    assert contact_line_length(sphere, level, sphere.free_surface_area(level)) == pytest.approx(
+        expected, rel=1e-12)
+    box = Prismatic(30.0, 25.0, 20.0)
+    # vertical walls: dA/dz equals the perimeter 2 (30 + 25) m (closed form)
+    assert contact_line_length(box, 7.0, box.free_surface_area(7.0)) == pytest.approx(
+        110.0, rel=1e-6)
+
+
+def test_wall_keys_parse_to_si_and_come_in_pairs():
+    data = default_scenario_dict()
+    tank = parse_scenario(data).tank
+    assert (tank.wall_thickness, tank.wall_conductivity) == (0.0, 0.0)  # default: no wall
+    data["tank"].update(wall_thickness_mm=2.0, wall_conductivity_w_mk=20.0)  # test values
+    tank = parse_scenario(data).tank
+    assert tank.wall_thickness == pytest.approx(0.002, rel=1e-12)
+    assert tank.wall_conductivity == 20.0
+    del data["tank"]["wall_conductivity_w_mk"]
+    with pytest.raises(ScenarioError, match="needs tank.wall_conductivity_w_mk"):
+        parse_scenario(data)
+
+
+def test_wall_values_must_not_be_negative():
+    with pytest.raises(ValueError, match="wall"):
+        TwoZoneModel(saturation_table("propane"), 100.0, 10.0, 0.0, shape=Sphere(5.76),
+                     wall_thickness=-0.01, wall_conductivity=40.0)
+
+
 # ---------------------------------------------------------------------------
 # Conservation and exactness of the rate relation
 
@@ -163,6 +278,53 @@ def test_closed_tank_first_law_and_mass_with_coolprop(propane_run):
     end = model.evaluate(y1, ambient, ambient)
     # stratified and superheated: vapour > surface > bulk
     assert end.vapour_temperature > end.surface_temperature > end.bulk_liquid_temperature
+
+
+#: Wall of a refrigerated-propane test tank: low-temperature carbon steel, 20 mm,
+#: about 40 W/(m K) near -40 degC (from memory; test values, not a real tank).
+PROPANE_WALL = dict(wall_thickness=0.020, wall_conductivity=40.0)
+
+
+def test_closed_tank_first_law_with_conduction_along_the_wall():
+    """The wall moves heat between vapour and liquid; the tank total still closes."""
+    shape = Sphere(12.0)
+    model = TwoZoneModel(saturation_table("propane"), shape.volume(),
+                         0.5 * shape.surface_area(), 0.0, shape=shape, **PROPANE_WALL)
+    ambient = c_to_k(30.0)
+    y0 = model.initial_state(0.6, barg_to_pa(0.1))
+
+    def rhs(t, y):
+        state = model.evaluate(y[:5], ambient, ambient)
+        return model.derivatives(state, 0.0, 0.0) + [state.heat_in]
+
+    sol = solve_ivp(rhs, (0, 3 * SECONDS_PER_DAY), np.append(y0, 0.0), rtol=1e-9, atol=1e-9)
+    y1, heat = sol.y[:5, -1], sol.y[5, -1]
+    assert y1[0] + y1[2] == pytest.approx(y0[0] + y0[2], rel=1e-12)
+    rise = internal_energy_coolprop(model, "propane", y1) - internal_energy_coolprop(
+        model, "propane", y0)
+    # tolerance: spline table vs CoolProp, as in the run without a wall
+    assert rise == pytest.approx(heat, rel=1e-4)
+    # the wall path is active: heat is moved out of the vapour's share
+    state = model.evaluate(y1, ambient, ambient)
+    plain = TwoZoneModel(saturation_table("propane"), shape.volume(),
+                         0.5 * shape.surface_area(), 0.0, shape=shape)
+    assert state._extra.heat_dry < plain.evaluate(y1, ambient, ambient)._extra.heat_dry
+    assert state.heat_in == pytest.approx(plain.evaluate(y1, ambient, ambient).heat_in,
+                                          rel=1e-12)
+
+
+def test_no_heat_nothing_moves_with_a_wall():
+    shape = Sphere(12.0)
+    model = TwoZoneModel(saturation_table("propane"), shape.volume(), 0.0, 0.0, shape=shape,
+                         **PROPANE_WALL)
+    plain = TwoZoneModel(saturation_table("propane"), shape.volume(), 0.0, 0.0, shape=shape)
+    y0 = model.initial_state(0.6, barg_to_pa(0.1))
+    rates = model.derivatives(model.evaluate(y0, 300.0, 300.0), 0.0, 0.0)
+    # exactly the model without a wall (whose voyage stays put: test_no_heat_nothing_moves)
+    assert rates == plain.derivatives(plain.evaluate(y0, 300.0, 300.0), 0.0, 0.0)
+    # and only round-off: the initial vapour density is from the spline table,
+    # its state from CoolProp (kg/s and K/s against 1e5 kg and 230 K)
+    assert max(abs(r) for r in rates) < 1e-9
 
 
 def test_pressure_rate_is_exactly_affine_in_withdrawals(propane_run):
@@ -445,6 +607,49 @@ def test_van_dresar_two_zone_within_25_percent_of_measured(lh2_rates, fill):
     assert lh2_rates[fill] > homogeneous
 
 
+#: Wall of the test tank for conduction along it: 2219 aluminium alloy about
+#: 2 mm thick (from memory, not checked against the report), conductivity of
+#: aluminium alloys of that family near 20 K about 20 W/(m K) (from memory,
+#: NIST cryogenic property data; uncertain by a factor of about 1.5). Nominal
+#: k t = 0.04 W/K; docs/two-zone.md reports k t from 0.013 to 0.12 W/K.
+LH2_WALL = dict(wall_thickness=0.002, wall_conductivity=20.0)
+
+
+@pytest.fixture(scope="module")
+def lh2_rates_wall():
+    """Two-zone rates as :func:`lh2_rates`, with conduction along the nominal wall.
+
+    The orchestrator builds the model from the scenario's tank; until it
+    passes ``TankSpec.wall_thickness`` / ``wall_conductivity`` on, the model
+    class is swapped for one carrying the wall for these runs.
+    """
+    import functools
+
+    import sim.voyage
+
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setitem(sim.voyage.MODELS, "two-zone", functools.partial(TwoZoneModel, **LH2_WALL))
+        return {fill: lh2_rate("two-zone", fill, window, ATM)
+                for fill, (window, _, _) in VAN_DRESAR_2W.items()}
+
+
+@pytest.mark.parametrize("fill", sorted(VAN_DRESAR_2W))
+def test_van_dresar_two_zone_with_wall_within_25_percent_of_measured(lh2_rates_wall, fill):
+    _, measured, homogeneous = VAN_DRESAR_2W[fill]
+    # at the nominal wall (29 % is 22 % low there and leaves the 25 % band at
+    # k t above about 0.08 W/K: docs/two-zone.md, "Conduction along the tank wall")
+    assert lh2_rates_wall[fill] == pytest.approx(measured, rel=0.25)
+    assert lh2_rates_wall[fill] > homogeneous
+
+
+@pytest.mark.xfail(strict=True, reason=(
+    "known limitation, also with conduction along the tank wall (nominal 2 mm aluminium "
+    "alloy, and k t from 0.013 to 0.12 W/K): the model ranks 83 % first, then 29 %, then "
+    "49 %; the tests rank 29 % > 83 % > 49 % (docs/two-zone.md, Validation)."))
+def test_van_dresar_fill_ranking_with_wall(lh2_rates_wall):
+    assert lh2_rates_wall[0.29] > lh2_rates_wall[0.83] > lh2_rates_wall[0.49]
+
+
 @pytest.mark.xfail(strict=True, reason=(
     "known limitation: the model ranks 83 % (3.9 kPa/h) above 29 % (3.3) and 49 % (3.3); "
     "the tests rank 29 % (3.82) > 83 % (3.47) > 49 % (2.72). Weakening the vapour-to-"
@@ -453,3 +658,14 @@ def test_van_dresar_two_zone_within_25_percent_of_measured(lh2_rates, fill):
     "(docs/two-zone.md, Validation); the missing physics is not on the vapour side alone."))
 def test_van_dresar_fill_ranking(lh2_rates):
     assert lh2_rates[0.29] > lh2_rates[0.83] > lh2_rates[0.49]
+
+
+def test_wall_keys_reach_the_two_zone_model():
+    """Wiring: [tank] wall keys -> the orchestrator builds the model with that wall."""
+    from sim.scenario import demo_scenarios, load_scenario
+    from sim.voyage import _Voyage
+
+    sc = load_scenario(demo_scenarios()["propane-type-c-stratified-mixing"])
+    tank = dataclasses.replace(sc.tank, wall_thickness=0.012, wall_conductivity=40.0)
+    model = _Voyage(dataclasses.replace(sc, tank=tank)).model
+    assert model.wall_conductance == pytest.approx(0.012 * 40.0, rel=1e-12)

@@ -103,6 +103,13 @@ FIELDS: dict[str, Field] = {f.key: f for f in (
        "Pressure at which the relief valves lift and vent vapour.", **_BARG),
     _f("tank.vacuum_barg", "Vacuum alarm level (barg)",
        "An event is logged if the tank pressure falls below this.", **_BARG),
+    _f("tank.wall_thickness_mm", "Wall thickness (mm)",
+       "Metal wall thickness, for conduction along the wall in the two-zone model (with the "
+       "wall conductivity). Optional: empty leaves wall conduction out.", step=0.5,
+       fmt="%.2f", blank="none"),
+    _f("tank.wall_conductivity_w_mk", "Wall conductivity (W/m K)",
+       "Thermal conductivity of the wall metal at cargo temperature (two-zone model). "
+       "Optional.", step=1.0, fmt="%.1f", blank="none"),
     _f("insulation.basis", "Heat ingress given as",
        "A rated boil-off rate (the U-value is worked out from it) or the U-value itself.",
        "choice"),
@@ -425,6 +432,8 @@ def flat_from_dict(data: dict) -> tuple[dict, pd.DataFrame, pd.DataFrame]:
     for key in ("fill_pct", "pressure_barg", "relief_set_barg"):
         flat[f"tank.{key}"] = number(tank.get(key))
     flat["tank.vacuum_barg"] = number(tank.get("vacuum_barg", _default("tank", "vacuum_barg")))
+    for key in ("wall_thickness_mm", "wall_conductivity_w_mk"):
+        flat[f"tank.{key}"] = number(tank.get(key))
     for key in ("rated_bor_pct_day", "u_w_m2k", "rated_fill_pct"):
         flat[f"insulation.{key}"] = number(ins.get(key))
     for key in ("air_exposed_pct", "rated_air_c", "rated_sea_c"):
@@ -496,7 +505,8 @@ def dict_from_form(flat: dict, legs: pd.DataFrame, outages: pd.DataFrame) -> tup
     count = flat.get("tank.count")
     if not _blank(count):
         tank["count"] = int(count) if float(count).is_integer() else float(count)
-    for key in ("fill_pct", "pressure_barg", "relief_set_barg", "vacuum_barg"):
+    for key in ("fill_pct", "pressure_barg", "relief_set_barg", "vacuum_barg",
+                "wall_thickness_mm", "wall_conductivity_w_mk"):
         put(tank, key, f"tank.{key}")
     data["tank"] = tank
 

@@ -130,6 +130,12 @@ Heat transfer
   :math:`T_i`.
 * Liquid cooled at the surface (:math:`\\theta < 0`): the unstable pair above,
   liquid properties at :math:`T_b`.
+* Conduction along the tank wall (optional, ``wall_thickness`` and
+  ``wall_conductivity``; off by default): the dry and the wetted wall are fins
+  joined at the liquid line (:func:`wall_line_heat`, Incropera et al. 2007).
+  The heat crossing the line is taken from the vapour's share of the wall
+  heat and enters the liquid by the rules above for wall heat next to and
+  below the warm layer.
 * Wall excess :math:`\\Delta T_w`: Eckert & Jackson (1950) turbulent wall,
   :math:`Nu_x = 0.0210 (Gr_x Pr)^{2/5}`, with the wall heat flux and the liquid
   depth as running length.
@@ -168,6 +174,9 @@ References
 .. [7] N. T. Van Dresar, C. S. Lin, M. M. Hasan, "Self-pressurization of a
    flightweight liquid hydrogen tank: effects of fill level at low wall heat
    flux", AIAA 92-0818 / NASA TM-105411 (1992) (validation data).
+.. [8] F. P. Incropera, D. P. DeWitt, T. L. Bergman, A. S. Lavine,
+   Fundamentals of Heat and Mass Transfer, 6th ed., Wiley (2007), section 3.6
+   (extended surfaces; conduction along the wall).
 """
 
 from __future__ import annotations
@@ -383,82 +392,127 @@ def wall_excess_temperature(heat_flux: float, run_length: float, conductivity: f
     return excess, group * excess
 
 
-def dry_wall_fin_heat(heat_flux: float, gas_coefficient: float, wall_conductance: float,
-                      gas_excess: float, dry_length: float) -> float:
-    """Heat the dry wall conducts into the liquid line, per unit length of that line.
+def wall_line_heat(wall_conductance: float, dry_flux: float, dry_coefficient: float,
+                   dry_length: float, vapour_excess: float, wet_coefficient: float,
+                   wet_excess: float, layer_excess: float, layer_thickness: float
+                   ) -> tuple[float, float]:
+    """Heat the tank wall conducts across the liquid line, and where it enters the liquid.
 
     Parameters
     ----------
-    heat_flux : float
-        Heat flux entering the dry wall from the insulation, uniform [W/m^2].
-    gas_coefficient : float
-        Wall-to-vapour heat-transfer coefficient on the dry wall [W/(m^2 K)].
     wall_conductance : float
         Wall conductivity times thickness, :math:`k t` [W/K].
-    gas_excess : float
-        Vapour temperature minus the wall temperature at the liquid line,
-        :math:`T_v - T_i` [K].
+    dry_flux : float
+        Heat flux from the insulation into the dry wall, uniform [W/m^2].
+    dry_coefficient : float
+        Dry-wall-to-vapour heat-transfer coefficient :math:`h_d` [W/(m^2 K)].
     dry_length : float
-        Length of dry wall from the liquid line to the top, measured along the
-        wall [m]; its end is adiabatic (the top of the tank, a symmetry line).
+        Dry wall from the liquid line to the top, along the wall [m]; its end
+        is adiabatic (the top of the tank, a symmetry line).
+    vapour_excess : float
+        Vapour temperature minus surface temperature, :math:`T_v - T_i` [K].
+    wet_coefficient : float
+        Wetted-wall-to-liquid heat-transfer coefficient :math:`h_l` [W/(m^2 K)].
+    wet_excess : float
+        Wetted wall above the liquid next to it, :math:`\\Delta T_w = q''_w/h_l`
+        (the insulation heat of the wetted wall) [K].
+    layer_excess : float
+        Surface above bulk, :math:`\\theta` (0 when there is no stable layer) [K].
+    layer_thickness : float
+        Warm-layer thickness :math:`\\delta`, measured along the wall [m].
 
     Returns
     -------
-    float
-        Heat crossing the liquid line into the wetted wall and the liquid
-        [W/m]; zero without a wall (``wall_conductance`` = 0).
+    tuple of float
+        ``(across, below)`` per unit length of the liquid line [W/m]:
+        ``across`` is the heat the dry wall hands to the wetted wall (taken
+        from the dry wall's insulation heat and from the vapour), all of which
+        the wetted wall gives to the liquid; ``below`` is the part of it given
+        to the liquid below the warm layer, the rest enters the layer.
 
     Notes
     -----
-    The dry wall is a straight fin of conductance :math:`k t` with a uniform
-    heat input :math:`q''` on one face and convection :math:`h (T - T_v)` to
-    the vapour on the other, its base held at the liquid line:
+    Both sides of the liquid line are fins of uniform cross-section (Incropera
+    et al. 2007, section 3.6), joined at the line where the wall has one
+    temperature :math:`w_0`. Temperatures here are measured from the surface
+    temperature :math:`T_i`.
+
+    *Dry side* (:math:`x` up the wall from the line): uniform heat input
+    :math:`q''_d` and convection to the vapour,
+    :math:`k t\\, w'' - h_d (w - T_v) + q''_d = 0` with an adiabatic end at
+    :math:`L`. Measured from :math:`T_\\infty = T_v + q''_d/h_d` this is the
+    adiabatic-tip fin, so with :math:`m_d = \\sqrt{h_d/(k t)}` the line
+    receives :math:`k t\\, m_d \\tanh(m_d L) (T_\\infty - w_0)`: about the
+    insulation heat falling within :math:`1/m_d` of the line,
+    :math:`q''_d/m_d`, plus what the wall picks up from the vapour there.
+
+    *Wetted side* (:math:`y` down the wall): the wall exchanges heat with
+    the liquid next to it, whose temperature is the warm layer's quadratic
+    profile :math:`T(y) = T_b + \\theta (1 - y/\\delta)^2` above
+    :math:`y = \\delta` and :math:`T_b` below:
+    :math:`k t\\, w'' - h_l (w - T(y)) + q''_w = 0`, :math:`w` bounded far
+    down. With :math:`m_l = \\sqrt{h_l/(k t)}`, :math:`X = m_l \\delta` and
+    :math:`f(X) = (1 - e^{-X})/X`, the piecewise solution (particular part
+    :math:`T + \\Delta T_w + T''/m_l^2`, exponentials matched in value and
+    slope at :math:`\\delta`) gives the heat entering the wetted wall at the
+    line
 
     .. math::
 
-        k t \\frac{d^2 T}{dx^2} - h (T - T_v) + q'' = 0, \\quad
-        T(0) = T_i, \\quad \\frac{dT}{dx}(L) = 0.
+        Q'_{wet} = k t \\left[ \\frac{2 \\theta}{\\delta} (1 - f(X))
+                  + m_l (w_0 - \\Delta T_w) \\right]
 
-    Measured from :math:`T_\\infty = T_v + q''/h` (the wall temperature far
-    from the line), the excess :math:`\\theta = T - T_\\infty` obeys the
-    equation of a fin of uniform cross-section without heat input, so with
-    :math:`m = \\sqrt{h/(k t)}` it is the classic adiabatic-tip solution
-    :math:`\\theta/\\theta_b = \\cosh m(L-x) / \\cosh mL`,
-    :math:`\\theta_b = T_i - T_\\infty` (Incropera et al. 2007, section 3.6.2,
-    case of the adiabatic tip), and the base takes
-
-    .. math::
-
-        Q' = k t\\, m \\tanh(mL)\\, (T_\\infty - T_i)
-           = \\tanh(mL) \\left[\\frac{q''}{m} + \\sqrt{h k t}\\,(T_v - T_i)\\right].
-
-    The first term is the insulation heat falling within about :math:`1/m` of
-    the liquid line; the second is vapour heat the wall picks up near the line.
-    For :math:`h \\to 0` the first term tends to :math:`q'' L` (all dry-wall
-    heat reaches the line).
+    and the heat it carries below the layer,
+    :math:`k t\\, m_l [e^{-X} (w_0 - \\Delta T_w) + \\theta f(X)^2]`.
+    The first term of :math:`Q'_{wet}` is the wall conducting heat down the
+    layer's temperature gradient in parallel with the liquid
+    (:math:`k t \\cdot 2\\theta/\\delta` once the layer is much thicker
+    than :math:`1/m_l`); for a layer thinner than :math:`1/m_l` the wall
+    sees the bulk. Setting the two sides equal fixes :math:`w_0`.
 
     References
     ----------
     .. [1] F. P. Incropera, D. P. DeWitt, T. L. Bergman, A. S. Lavine,
        Fundamentals of Heat and Mass Transfer, 6th ed., Wiley (2007),
-       section 3.6 (extended surfaces; fin of uniform cross-section with an
-       adiabatic tip). The uniform heat input enters by the shift of the
-       reference temperature to :math:`T_\\infty`.
+       section 3.6 (extended surfaces: fin of uniform cross-section,
+       adiabatic tip and infinite fin). The uniform heat input and the
+       stratified surroundings enter through a particular solution (a shift
+       of the reference temperature).
 
     Examples
     --------
-    A long fin: :math:`q''/m` with :math:`m = \\sqrt{10/0.04} = 15.8` 1/m.
+    A long dry fin over an unstratified liquid, the wall well coupled to the
+    liquid (:math:`h_l \\gg h_d`): the line takes about :math:`q''_d/m_d`,
+    :math:`m_d = \\sqrt{10/0.04} = 15.8` 1/m.
 
-    >>> round(dry_wall_fin_heat(2.0, 10.0, 0.04, 0.0, 5.0), 5)
-    0.12649
+    >>> across, below = wall_line_heat(0.04, 2.0, 10.0, 5.0, 0.0, 1e8, 0.0, 0.0, 0.0)
+    >>> round(across, 4), round(below / across, 6)
+    (0.1265, 1.0)
     """
-    if wall_conductance <= 0.0 or dry_length <= 0.0:
-        return 0.0
-    if gas_coefficient <= 0.0:
-        return heat_flux * dry_length
-    m = math.sqrt(gas_coefficient / wall_conductance)
-    reach = math.tanh(m * dry_length)
-    return reach * (heat_flux / m + math.sqrt(gas_coefficient * wall_conductance) * gas_excess)
+    if wall_conductance <= 0.0 or wet_coefficient <= 0.0 or dry_length <= 0.0:
+        return 0.0, 0.0
+    kt = wall_conductance
+    # dry side: Q' = a_d - b_d w0
+    m_d = math.sqrt(max(dry_coefficient, 0.0) / kt)
+    x_d = m_d * dry_length
+    reach = math.tanh(x_d) / m_d if x_d > 1e-8 else dry_length  # tanh(mL)/m -> L
+    b_d = kt * m_d * m_d * reach  # = h_d tanh(mL)/m
+    a_d = dry_flux * reach + b_d * vapour_excess
+    # wetted side: Q' = kt (G + m_l (w0 - dTw))
+    m_l = math.sqrt(wet_coefficient / kt)
+    theta = max(layer_excess, 0.0)
+    x = m_l * max(layer_thickness, 0.0)
+    if x < 1e-3:  # series of f(X) and (1 - f(X))/X about 0
+        f = 1.0 - x / 2.0 + x * x / 6.0
+        r = 0.5 - x / 6.0 + x * x / 24.0
+    else:
+        f = -math.expm1(-x) / x
+        r = (1.0 - f) / x
+    gradient = 2.0 * theta * m_l * r  # = 2 theta/delta (1 - f)
+    w0 = (a_d - kt * gradient + kt * m_l * wet_excess) / (b_d + kt * m_l)
+    across = a_d - b_d * w0
+    below = kt * m_l * (math.exp(-x) * (w0 - wet_excess) + theta * f * f)
+    return across, below
 
 
 def contact_line_length(shape, level: float, free_surface: float) -> float:
@@ -675,6 +729,11 @@ class TwoZoneModel:
     shape : TankShape
         Tank shape (:mod:`sim.geometry`); required, the model splits the heat
         by wetted and dry area and needs the free-surface area.
+    wall_thickness : float, optional
+        Metal wall thickness [m]; with ``wall_conductivity`` it enables
+        conduction along the wall across the liquid line. Default 0: none.
+    wall_conductivity : float, optional
+        Wall thermal conductivity at cargo temperature [W/(m K)]. Default 0.
 
     Attributes
     ----------
@@ -946,26 +1005,11 @@ class TwoZoneModel:
                        "unstable): extrapolated")
         heat_vi = nusselt * k_v / length * surface * dt_v
 
-        # Conduction along the dry wall (a fin) into the liquid line, where it
-        # enters the liquid at the surface: taken from the vapour's share of
-        # the wall heat and delivered to the interface. Off without wall data.
-        heat_fin = 0.0
-        dry_area = self.area - wetted
-        dry_length = self.height - level  # along the wall >= this; only tanh(m L) sees it
-        if self.wall_conductance > 0.0 and dry_area > 0.0 and dry_length > 0.0:
-            flux = heat_dry / dry_area
-            gas_coefficient = 0.0
-            if flux != 0.0:
-                # wall-to-vapour coefficient: Eckert & Jackson's turbulent wall with
-                # vapour properties (g beta Pr / nu^2 = g beta / (nu alpha))
-                gas_excess, _ = wall_excess_temperature(abs(flux), dry_length, k_v, ra_v)
-                gas_coefficient = abs(flux) / gas_excess
-            line = contact_line_length(shape, level, surface)
-            heat_fin = line * dry_wall_fin_heat(flux, gas_coefficient, self.wall_conductance,
-                                                vapour_temp - t_i, dry_length)
-            heat_dry -= heat_fin
-            heat_wet += heat_fin
-            heat_top += heat_fin
+        if self.wall_conductance > 0.0:
+            heat_dry, heat_wet, heat_top, heat_layer = self._wall_conduction(
+                heat_dry, heat_wet, heat_wet_bulk, heat_top, heat_layer, wetted, level, surface,
+                vapour_temp - t_i, k_v, ra_v, wall_excess, theta if stable else 0.0,
+                delta if stable else 0.0, share, deposit)
 
         # Interface energy balance; when the surface is colder than the bulk,
         # ``conduction`` is negative and is heat the bulk gives up.
@@ -981,6 +1025,48 @@ class TwoZoneModel:
         fields = (p, t_i, vapour_temp, liquid_volume / self.volume, liquid_mass, vapour_mass,
                   heat_dry + heat_wet, t_i, bulk_temp, mean_temp, delta)
         return fields, point
+
+    def _wall_conduction(self, heat_dry, heat_wet, heat_wet_bulk, heat_top, heat_layer, wetted,
+                         level, surface, vapour_excess, k_v, ra_v, wall_excess, theta, delta, share,
+                         deposit):
+        """Move the heat the wall conducts across the liquid line (:func:`wall_line_heat`).
+
+        Returns ``(heat_dry, heat_wet, heat_top, heat_layer)`` [W]: the vapour's
+        share of the wall heat less what the dry wall hands across the line;
+        the liquid's share plus it. The part entering the liquid below the
+        warm layer follows the rule for wall heat below the layer (the share
+        of fluid warmer than the layer reaches the surface, the rest heats the
+        bulk); the part entering the layer follows the rule for the band next
+        to it (that share to the surface, the rest warms the layer while it
+        can still store heat).
+        """
+        dry_area = self.area - wetted
+        dry_length = self.height - level  # along the wall >= this; only tanh(m L) sees it
+        if dry_area <= 0.0 or dry_length <= 0.0 or heat_wet_bulk <= 0.0 or wetted <= 0.0:
+            return heat_dry, heat_wet, heat_top, heat_layer
+        dry_flux = heat_dry / dry_area
+        dry_coefficient = 0.0
+        if dry_flux != 0.0:
+            # Eckert & Jackson's turbulent wall with vapour properties, the dry
+            # height as running length (g beta Pr / nu^2 = g beta / (nu alpha))
+            gas_excess, _ = wall_excess_temperature(abs(dry_flux), dry_length, k_v, ra_v)
+            dry_coefficient = abs(dry_flux) / gas_excess
+        wet_coefficient = heat_wet_bulk / wetted / wall_excess
+        across, below = wall_line_heat(self.wall_conductance, dry_flux, dry_coefficient,
+                                       dry_length, vapour_excess, wet_coefficient, wall_excess,
+                                       theta, delta)
+        line = contact_line_length(self.shape, level, surface)
+        across, below = line * across, line * below
+        into_layer = across - below
+        if below > 0.0:
+            heat_top += share * below
+        if into_layer > 0.0:
+            kept = deposit * (1.0 - share) * into_layer
+            heat_layer += kept
+            heat_top += into_layer - kept
+        else:
+            heat_layer += into_layer
+        return heat_dry - across, heat_wet + across, heat_top, heat_layer
 
     def evaluate(self, y, air_temperature: float, sea_temperature: float) -> TankState:
         """Tank state for a state vector and the ambient temperatures [K].

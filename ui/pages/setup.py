@@ -231,6 +231,10 @@ def _inputs() -> dict:
         a, b = st.columns(2)
         slots["tank.relief_set_barg"] = widgets.field("tank.relief_set_barg", a)
         slots["tank.vacuum_barg"] = widgets.field("tank.vacuum_barg", b)
+        if st.session_state.get("model") == "two-zone":
+            a, b = st.columns(2)
+            slots["tank.wall_thickness_mm"] = widgets.field("tank.wall_thickness_mm", a)
+            slots["tank.wall_conductivity_w_mk"] = widgets.field("tank.wall_conductivity_w_mk", b)
 
     with _group("Insulation", "Heat flows in through the tank surface: U-value × area × "
                 "(ambient − cargo temperature), air and sea parts separately."):
