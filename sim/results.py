@@ -311,7 +311,8 @@ def _commercial(voyage, frame, final_y, lost_kg) -> dict:
     ys = np.array([frame[f"y_{c}"].to_numpy(dtype=float) for c in names])
     molar_rate = frame["boil_off_kg_h"].to_numpy(dtype=float) / (masses @ ys)
     hours = frame["time_h"].to_numpy(dtype=float)
-    weights = np.trapezoid(ys * molar_rate, hours, axis=1) if hours.size > 1 else np.zeros(len(names))
+    weights = (np.trapezoid(ys * molar_rate, hours, axis=1) if hours.size > 1
+               else np.zeros(len(names)))
     bog_mean = ({c: float(w / weights.sum()) for c, w in zip(names, weights, strict=True)}
                 if weights.sum() > 0 else None)
     q_start, q_arrival = quality(start), quality(arrival)

@@ -637,8 +637,6 @@ def simulate(scenario: Scenario, progress=None):
         # accumulated mass per sink, after the heat: fuel, reliquefied, oxidised,
         # vented; then the gross heating value each carried away
         slots = [(n + 1 + SINK_KEYS.index(sink.key), k) for k, sink in enumerate(voyage.sinks)]
-        energy_offset = len(SINK_KEYS)
-
         def rhs(t_, y_, mode=mode, caps=caps, leg=leg, slots=slots):
             voyage.rhs_calls += 1
             st = voyage.evaluate(y_, leg)
@@ -652,7 +650,7 @@ def simulate(scenario: Scenario, progress=None):
             gcv = voyage.vapour_heating_value(st)
             for slot, k in slots:
                 out[slot] = r[k]
-                out[slot + energy_offset] = r[k] * gcv
+                out[slot + len(SINK_KEYS)] = r[k] * gcv
             return out
 
         context = model.context() if hasattr(model, "context") else None
@@ -685,7 +683,6 @@ def simulate(scenario: Scenario, progress=None):
             y = sol.y_events[i][-1].copy()
             t_end = float(sol.t_events[i][-1])
             state = voyage.evaluate(y, leg)
-            old = mode
             kind = tag[0]
             if kind == "heel-exhausted":
                 voyage.note(
