@@ -14,9 +14,11 @@ Building blocks for mixture cargoes, in SI (K, Pa absolute, mol, m^3, J):
   on K-values with HEOS fugacity coefficients and :func:`rachford_rice`;
   CoolProp's own ``PT`` flash is kept as a slower fallback and reference
   (:func:`coolprop_flash`).
-* :class:`BubbleCurveKValues` -- the fast path for an integrator: ln K_i and
+* ``BubbleCurveKValues`` -- the fast path for an integrator: ln K_i and
   saturated-phase properties splined against temperature along the bubble
-  curve of one liquid composition, refreshed when the liquid drifts.
+  curve of one liquid composition, refreshed when the liquid drifts. It is a
+  :class:`sim.mixture_table.MixtureTable` (the one spline-table mechanism for
+  mixtures) and is importable from here for convenience.
 * :func:`closed_tank_state` -- a rigid tank holding given moles of each
   component with a given internal energy: temperature, pressure, phase
   split and phase compositions by our own outer iteration on temperature
@@ -71,7 +73,6 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.interpolate import CubicSpline
 
 from .cargo import CATALOGUE
 
@@ -916,220 +917,14 @@ def coolprop_flash(
     )
 
 
-# --------------------------------------------------------------------------
-# Fast path: K-values along the bubble curve of one liquid composition
-# --------------------------------------------------------------------------
-class BubbleCurveKValues:
-    """K-values and saturated properties splined along one liquid's bubble curve.
+def __getattr__(name):
+    # The fast K-value table lives with the other spline tables in
+    # sim.mixture_table (it imports this module, so it is fetched lazily).
+    if name == "BubbleCurveKValues":
+        from .mixture_table import BubbleCurveKValues
 
-    Built from ``nodes`` CoolProp bubble-point (``QT``) calls for a fixed
-    reference liquid composition :math:`x^0` over a temperature range. Per
-    component, :math:`\\ln K_i^0(T)` and :math:`\\ln p_b^0(T)` are cubic
-    splines in T; so are the saturated-liquid and incipient-vapour molar
-    densities, enthalpies and internal energies.
-
-    For a liquid that has drifted a little from :math:`x^0` (weathering) and
-    for flashes near the bubble curve, the K-values are corrected for
-    pressure as in Raoult's and Henry's laws,
-    :math:`K_i(T, p) = K_i^0(T)\\, p_b^0(T) / p`, so that
-
-    * bubble pressure of a liquid x: :math:`p_b = p_b^0(T) \\sum_i K_i^0(T) x_i`,
-      incipient vapour :math:`y_i = K_i^0 x_i p_b^0 / p_b`;
-    * flash of a feed z at (T, p): :func:`rachford_rice` with those K.
-
-    The approximation neglects how activity and vapour fugacity coefficients
-    change with composition and pressure, so its error grows in proportion to
-    the drift: for LNG, about 0.1 % in bubble pressure and 0.0006 in vapour
-    mole fraction per 0.1 %-point of nitrogen lost from the liquid (measured
-    against CoolProp HEOS, see the tests). Refresh (rebuild for the current
-    liquid, ~10 bubble-point calls) when :meth:`needs_refresh` says so.
-    Evaluation costs tens of microseconds against milliseconds for a CoolProp
-    flash.
-
-    Parameters
-    ----------
-    liquid : Mixture or mapping
-        Reference liquid composition :math:`x^0` [-].
-    temperature_min, temperature_max : float
-        Range to tabulate [K].
-    nodes : int
-        Bubble-point calls (spline nodes), at least 4.
-    backends : sequence of str
-        Backends to try; the whole table uses the first that succeeds at every
-        node (energies from different backends must not be mixed).
-    composition_tolerance : float
-        :meth:`needs_refresh` is True once any mole fraction moved more than
-        this from the reference [-].
-
-    Attributes
-    ----------
-    reference : Mixture
-    backend : str
-    temperatures : ndarray  [K]
-    build_seconds : float
-        Wall time of the build [s].
-    """
-
-    def __init__(
-        self,
-        liquid: Mixture | Mapping[str, float],
-        temperature_min: float,
-        temperature_max: float,
-        nodes: int = 9,
-        backends: Sequence[str] = DEFAULT_BACKENDS,
-        composition_tolerance: float = 1e-3,
-    ):
-        if nodes < 4:
-            raise ValueError("need at least 4 nodes for cubic splines")
-        if not temperature_max > temperature_min:
-            raise ValueError("temperature_max must exceed temperature_min")
-        start = time.perf_counter()
-        self.reference = _as_mixture(liquid)
-        self.components = self.reference.components
-        x0 = self.reference.as_array()
-        self._active = _active(x0)
-        if len(self._active) != len(self.components):
-            raise ValueError("every component of the reference liquid must be present (> 0)")
-        self.composition_tolerance = float(composition_tolerance)
-        self.temperatures = np.linspace(temperature_min, temperature_max, nodes)
-        errors = []
-        for backend in backends:
-            try:
-                rows = [
-                    _saturation(self.components, x0, "bubble", "T", float(t), (backend,))
-                    for t in self.temperatures
-                ]
-            except EquilibriumError as exc:
-                errors.append(str(exc))
-                continue
-            self.backend = backend
-            break
-        else:
-            raise EquilibriumError("could not build the K-value table: " + " | ".join(errors))
-        x = np.array([r.liquid.mole_fractions for r in rows])
-        y = np.array([r.vapour.mole_fractions for r in rows])
-        p = np.array([r.pressure for r in rows])
-        self._ln_k = CubicSpline(self.temperatures, np.log(y / x), axis=0)
-        self._ln_p = CubicSpline(self.temperatures, np.log(p))
-        props = np.array(
-            [
-                [
-                    r.liquid.molar_density,
-                    r.vapour.molar_density,
-                    r.liquid.molar_enthalpy,
-                    r.vapour.molar_enthalpy,
-                    r.liquid.molar_internal_energy,
-                    r.vapour.molar_internal_energy,
-                ]
-                for r in rows
-            ]
-        )
-        self._props = CubicSpline(self.temperatures, props, axis=0)
-        self._x0 = x0
-        self.build_seconds = time.perf_counter() - start
-
-    # -- evaluation ---------------------------------------------------------
-    def reference_k_values(self, temperature: float) -> np.ndarray:
-        """K_i^0 on the reference liquid's bubble curve [-]."""
-        return np.exp(self._ln_k(temperature))
-
-    def reference_bubble_pressure(self, temperature: float) -> float:
-        """Bubble pressure of the reference liquid [K] -> [Pa]."""
-        return float(np.exp(self._ln_p(temperature)))
-
-    def k_values(self, temperature: float, pressure: float) -> np.ndarray:
-        """K_i(T, p) = K_i^0(T) p_b^0(T) / p [-]."""
-        return self.reference_k_values(temperature) * (
-            self.reference_bubble_pressure(temperature) / pressure
-        )
-
-    def bubble_pressure(
-        self, liquid: Sequence[float], temperature: float
-    ) -> tuple[float, np.ndarray]:
-        """Bubble pressure and incipient vapour of a liquid near the reference.
-
-        Parameters
-        ----------
-        liquid : sequence of float
-            Liquid mole fractions in the table's component order [-].
-        temperature : float  [K]
-
-        Returns
-        -------
-        pressure : float  [Pa]
-        vapour : ndarray  [-]
-        """
-        x = np.asarray(liquid, dtype=float)
-        partial = (
-            self.reference_k_values(temperature) * x * self.reference_bubble_pressure(temperature)
-        )
-        pressure = float(partial.sum())
-        return pressure, partial / pressure
-
-    def bubble_temperature(
-        self, liquid: Sequence[float], pressure: float, tolerance: float = 1e-9
-    ) -> tuple[float, np.ndarray]:
-        """Bubble temperature [K] and incipient vapour of a liquid at a pressure [Pa].
-
-        Newton's method on ln p_b(T) with the spline's derivative; stays
-        inside the table's range (raises ValueError if the answer is outside).
-        """
-        x = np.asarray(liquid, dtype=float)
-        target = math.log(pressure)
-        t_lo, t_hi = float(self.temperatures[0]), float(self.temperatures[-1])
-        temp = 0.5 * (t_lo + t_hi)
-        dlnk = self._ln_k.derivative()
-        dlnp = self._ln_p.derivative()
-        for _ in range(50):
-            k0 = self.reference_k_values(temp)
-            s = float(np.dot(k0, x))
-            f = float(self._ln_p(temp)) + math.log(s) - target
-            df = float(dlnp(temp)) + float(np.dot(k0 * dlnk(temp), x)) / s
-            step = f / df
-            temp = min(max(temp - step, t_lo), t_hi)
-            if abs(step) < tolerance:
-                break
-        p, y = self.bubble_pressure(x, temp)
-        if abs(math.log(p) - target) > 1e-6:
-            raise ValueError(
-                f"bubble temperature at {pressure:g} Pa lies outside the table "
-                f"({t_lo:.2f}-{t_hi:.2f} K)"
-            )
-        return temp, y
-
-    def flash(
-        self, feed: Sequence[float], temperature: float, pressure: float
-    ) -> tuple[float, np.ndarray, np.ndarray]:
-        """Fast flash of a feed near the reference liquid: (beta, x, y) [-]."""
-        return rachford_rice(feed, self.k_values(temperature, pressure))
-
-    def saturated_properties(self, temperature: float) -> dict[str, float]:
-        """Reference liquid at its bubble point and its incipient vapour.
-
-        Returns
-        -------
-        dict
-            ``pressure`` [Pa], ``liquid_molar_density``,
-            ``vapour_molar_density`` [mol/m^3], ``liquid_molar_enthalpy``,
-            ``vapour_molar_enthalpy``, ``liquid_molar_internal_energy``,
-            ``vapour_molar_internal_energy`` [J/mol].
-        """
-        v = self._props(temperature)
-        return {
-            "pressure": self.reference_bubble_pressure(temperature),
-            "liquid_molar_density": float(v[0]),
-            "vapour_molar_density": float(v[1]),
-            "liquid_molar_enthalpy": float(v[2]),
-            "vapour_molar_enthalpy": float(v[3]),
-            "liquid_molar_internal_energy": float(v[4]),
-            "vapour_molar_internal_energy": float(v[5]),
-        }
-
-    def needs_refresh(self, liquid: Sequence[float], temperature: float) -> bool:
-        """True if the liquid drifted past the tolerance or T left the table."""
-        drift = float(np.max(np.abs(np.asarray(liquid, dtype=float) - self._x0)))
-        inside = self.temperatures[0] <= temperature <= self.temperatures[-1]
-        return drift > self.composition_tolerance or not inside
+        return BubbleCurveKValues
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 # --------------------------------------------------------------------------
@@ -1444,7 +1239,9 @@ def benchmark(repeats: int = 5) -> dict[str, float]:
     timed("flash_two_phase", lambda: flash(lng, 115.0, 1.5e5))
     timed("flash_subcooled", lambda: flash(lng, 112.0, 3.0e5))
     timed("coolprop_flash_two_phase", lambda: coolprop_flash(lng, 115.0, 1.5e5), n=2)
-    table = BubbleCurveKValues(lng, 108.0, 125.0)
+    from .mixture_table import BubbleCurveKValues
+
+    table = BubbleCurveKValues(EXAMPLE_LNG, 108.0, 125.0)  # a dict: safe under -m
     out["k_table_build"] = table.build_seconds
     x = lng.as_array()
     timed("k_table_bubble_pressure", lambda: table.bubble_pressure(x, 115.0), n=2000)

@@ -56,9 +56,11 @@ from .mixture import (
     MIXTURE_COMPONENTS,
     EquilibriumError,
     Mixture,
+    _as_mixture,
     _pure_molar_mass,
     _saturation,
     _state,
+    rachford_rice,
 )
 
 #: Relative perturbation of one mole number for the partial-molar differences [-].
@@ -240,6 +242,103 @@ class MixtureTable:
                 return new
             temp = new
         return temp
+
+
+class BubbleCurveKValues(MixtureTable):
+    """A :class:`MixtureTable` with a convenience interface for flash work.
+
+    ``nodes`` evenly spaced bubble points between ``temperature_min`` and
+    ``temperature_max`` [K] for the reference liquid; K-values of a drifted
+    liquid scale as :math:`K_i(T, p) = K_i^0(T)\\, p^0(T)/p` (Raoult/Henry),
+    so its bubble pressure is :math:`p^0 \\sum_i K_i^0 x_i`. The error grows
+    with the drift: refresh when :meth:`needs_refresh` says so.
+
+    Parameters
+    ----------
+    liquid : Mixture or mapping
+        Reference liquid composition [-]; every component present.
+    temperature_min, temperature_max : float  [K]
+    nodes : int  bubble-point calls, at least 4
+    backends : sequence of str
+    composition_tolerance : float
+        :meth:`needs_refresh` is True once any mole fraction moved more than
+        this from the reference [-].
+    """
+
+    def __init__(self, liquid, temperature_min: float, temperature_max: float, nodes: int = 9,
+                 backends: Sequence[str] = DEFAULT_BACKENDS,
+                 composition_tolerance: float = 1e-3):
+        if nodes < 4:
+            raise ValueError("need at least 4 nodes for cubic splines")
+        if not temperature_max > temperature_min:
+            raise ValueError("temperature_max must exceed temperature_min")
+        mixture = _as_mixture(liquid)
+        super().__init__(mixture.components, mixture.as_array(),
+                         np.linspace(temperature_min, temperature_max, nodes), backends)
+        self.composition_tolerance = float(composition_tolerance)
+
+    def reference_k_values(self, temperature: float) -> np.ndarray:
+        """K_i^0 on the reference liquid's bubble curve [-]."""
+        return np.exp(self.split(self.raw(temperature)[0])[1])
+
+    def reference_bubble_pressure(self, temperature: float) -> float:
+        """Bubble pressure of the reference liquid [K] -> [Pa]."""
+        return math.exp(float(self.raw(temperature)[0][0]))
+
+    def k_values(self, temperature: float, pressure: float) -> np.ndarray:
+        """K_i(T, p) = K_i^0(T) p^0(T) / p [-]."""
+        return self.reference_k_values(temperature) * (
+            self.reference_bubble_pressure(temperature) / pressure)
+
+    def bubble_pressure(self, liquid, temperature: float) -> tuple[float, np.ndarray]:
+        """Bubble pressure [Pa] and incipient vapour [-] of a liquid near the reference."""
+        partial = (self.k_values(temperature, 1.0) * np.asarray(liquid, dtype=float))
+        pressure = float(partial.sum())
+        return pressure, partial / pressure
+
+    def bubble_temperature(self, liquid, pressure: float) -> tuple[float, np.ndarray]:
+        """Bubble temperature [K] and incipient vapour of a liquid at a pressure [Pa].
+
+        Raises ValueError if the answer lies outside the table.
+        """
+        temp = MixtureTable.bubble_temperature(self, pressure, liquid)
+        p, y = self.bubble_pressure(liquid, temp)
+        if abs(math.log(p / pressure)) > 1e-6:
+            raise ValueError(
+                f"bubble temperature at {pressure:g} Pa lies outside the table "
+                f"({self.temperature_min:.2f}-{self.temperature_max:.2f} K)")
+        return temp, y
+
+    def flash(self, feed, temperature: float, pressure: float):
+        """Fast flash of a feed near the reference liquid: (beta, x, y) [-]."""
+        return rachford_rice(feed, self.k_values(temperature, pressure))
+
+    def saturated_properties(self, temperature: float) -> dict[str, float]:
+        """Reference liquid at its bubble point and its incipient vapour (molar, SI).
+
+        From the partial molar properties (Euler): v = sum x_i vbar_i, u = sum x_i ubar_i.
+        """
+        lnp, lnk, vl, ul, vv, uv = self.split(self.raw(temperature)[0])
+        p = math.exp(lnp)
+        x = self.reference
+        y = np.exp(lnk) * x
+        y /= y.sum()
+        v_l, v_v = float(x @ vl), float(y @ vv)
+        u_l, u_v = float(x @ ul), float(y @ uv)
+        return {
+            "pressure": p,
+            "liquid_molar_density": 1.0 / v_l,
+            "vapour_molar_density": 1.0 / v_v,
+            "liquid_molar_enthalpy": u_l + p * v_l,
+            "vapour_molar_enthalpy": u_v + p * v_v,
+            "liquid_molar_internal_energy": u_l,
+            "vapour_molar_internal_energy": u_v,
+        }
+
+    def needs_refresh(self, liquid, temperature: float) -> bool:
+        """True if the liquid drifted past the tolerance or T left the table."""
+        drift = float(np.max(np.abs(np.asarray(liquid, dtype=float) - self.reference)))
+        return drift > self.composition_tolerance or not self.contains(temperature)
 
 
 def node_temperatures(t_low: float, t_high: float, spacing: float = 2.0, minimum: int = 5):

@@ -144,13 +144,10 @@ class _Voyage:
                 shape=self.shape, gross_molar=self.gross_molar,
                 limits=(self.table.temperature_min, self.table.temperature_max),
             )
-            self._warn_solids(scenario)
-            if self.model.table.backend != "HEOS":
-                self.model.warnings.append(
-                    f"mixture properties from {self.model.table.backend} (Peng-Robinson): "
-                    "CoolProp's HEOS mixture model has no parameters for this composition; "
-                    "liquid densities of a cubic equation of state can be ~10 % high")
         self.n_model = len(self.model.state_names)
+        # gross heating value per kg of a pure cargo's vapour [J/kg] (0: none tabulated)
+        self._pure_gcv = (float(self.gross_molar[0]) / self.table.molar_mass
+                          if self.gross_molar is not None else 0.0)
         self.delivered_energy = 0.0
         self.loaded_energy = 0.0
 
@@ -177,23 +174,6 @@ class _Voyage:
         self.rhs_calls = 0
         self.delivered_t = 0.0
         self.loaded_t = 0.0
-
-    def _warn_solids(self, scenario: Scenario) -> None:
-        """Warn where carbon dioxide in a cold liquid may freeze out (not modelled)."""
-        from .mixture import _state
-
-        co2 = dict(scenario.mole_fractions).get("carbon-dioxide", 0.0)
-        if co2 <= 0.0:
-            return
-        t_liquid = self.table.temperature(scenario.tank.pressure)
-        t_triple = _state("HEOS", ("CarbonDioxide",), "any").Ttriple()
-        if t_liquid < t_triple:
-            self.model.warnings.append(
-                f"carbon dioxide at {1e6 * co2:.0f} ppm in a liquid at "
-                f"{t_liquid - 273.15:.1f} degC, below CO2's triple point "
-                f"({t_triple - 273.15:.1f} degC): it may freeze out (LNG specifications "
-                "commonly hold CO2 to about 50 ppm - common practice, no source); solids "
-                "are not modelled")
 
     # -- capacities and ambient ---------------------------------------------
     def leg_at(self, t: float):
@@ -348,15 +328,13 @@ class _Voyage:
             return 0.0
         if state.liquid_fractions is not None:
             return float(np.dot(y[: self.n_model - 1], self.gross_molar))
-        return state.cargo_mass * float(self.gross_molar[0]) / self.table.molar_mass
+        return state.cargo_mass * self._pure_gcv
 
     def vapour_heating_value(self, state) -> float:
         """Gross heating value of the vapour drawn off [J/kg] (0 without values)."""
-        if self.gross_molar is None:
-            return 0.0
-        if state.liquid_fractions is not None:
+        if state.liquid_fractions is not None and self.gross_molar is not None:
             return self.model.vapour_heating_value(state)
-        return float(self.gross_molar[0]) / self.table.molar_mass
+        return self._pure_gcv
 
     # -- state evaluation -----------------------------------------------------
     def evaluate(self, y, leg):

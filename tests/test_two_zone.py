@@ -245,9 +245,8 @@ def test_wall_values_must_not_be_negative():
 # Conservation and exactness of the rate relation
 
 
-@pytest.fixture(scope="module")
-def propane_run():
-    """A sealed 12 m propane sphere, 60 % full, heated for 10 days at 30 degC (model only).
+def sealed_propane_sphere(days, **wall):
+    """A sealed 12 m propane sphere, 60 % full, heated for ``days`` at 30 degC (model only).
 
     Invented test case (sizes and U-value typical of refrigerated LPG, no source).
 
@@ -255,7 +254,7 @@ def propane_run():
     """
     shape = Sphere(12.0)
     model = TwoZoneModel(saturation_table("propane"), shape.volume(),
-                         0.5 * shape.surface_area(), 0.0, shape=shape)
+                         0.5 * shape.surface_area(), 0.0, shape=shape, **wall)
     ambient = c_to_k(30.0)
     y0 = model.initial_state(0.6, barg_to_pa(0.1))
 
@@ -263,8 +262,14 @@ def propane_run():
         state = model.evaluate(y[:5], ambient, ambient)
         return model.derivatives(state, 0.0, 0.0) + [state.heat_in]
 
-    sol = solve_ivp(rhs, (0, 10 * SECONDS_PER_DAY), np.append(y0, 0.0), rtol=1e-9, atol=1e-9)
+    sol = solve_ivp(rhs, (0, days * SECONDS_PER_DAY), np.append(y0, 0.0), rtol=1e-9, atol=1e-9)
     return model, ambient, y0, sol.y[:5, -1], sol.y[5, -1]
+
+
+@pytest.fixture(scope="module")
+def propane_run():
+    """The sealed propane sphere heated for 10 days."""
+    return sealed_propane_sphere(10.0)
 
 
 def test_closed_tank_first_law_and_mass_with_coolprop(propane_run):
@@ -287,18 +292,8 @@ PROPANE_WALL = dict(wall_thickness=0.020, wall_conductivity=40.0)
 
 def test_closed_tank_first_law_with_conduction_along_the_wall():
     """The wall moves heat between vapour and liquid; the tank total still closes."""
-    shape = Sphere(12.0)
-    model = TwoZoneModel(saturation_table("propane"), shape.volume(),
-                         0.5 * shape.surface_area(), 0.0, shape=shape, **PROPANE_WALL)
-    ambient = c_to_k(30.0)
-    y0 = model.initial_state(0.6, barg_to_pa(0.1))
-
-    def rhs(t, y):
-        state = model.evaluate(y[:5], ambient, ambient)
-        return model.derivatives(state, 0.0, 0.0) + [state.heat_in]
-
-    sol = solve_ivp(rhs, (0, 3 * SECONDS_PER_DAY), np.append(y0, 0.0), rtol=1e-9, atol=1e-9)
-    y1, heat = sol.y[:5, -1], sol.y[5, -1]
+    model, ambient, y0, y1, heat = sealed_propane_sphere(3.0, **PROPANE_WALL)
+    shape = model.shape
     assert y1[0] + y1[2] == pytest.approx(y0[0] + y0[2], rel=1e-12)
     rise = internal_energy_coolprop(model, "propane", y1) - internal_energy_coolprop(
         model, "propane", y0)

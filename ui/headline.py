@@ -94,40 +94,29 @@ def energy_headlines(summary: dict) -> list[Headline]:
     loaded, lost = _num(summary.get("energy_loaded_gj")), _num(summary.get("energy_lost_gj"))
     delivered = _num(summary.get("energy_delivered_gj"))
     reason = no_energy_reason(summary)
-    items = []
-    if loaded is None:
-        items.append(Headline("energy_loaded", "Energy loaded", "—", reason,
-                              "Gross heating value of the cargo on board at departure "
-                              "(and loaded at port calls)."))
-    else:
-        items.append(Headline("energy_loaded", "Energy loaded", f"{loaded:,.0f} GJ",
-                              f"{summary['energy_loaded_mmbtu']:,.0f} MMBtu",
-                              "Gross heating value of the cargo on board at departure "
-                              "(and loaded at port calls)."))
-    if lost is None:
-        items.append(Headline("energy_lost", "Energy lost", "—", reason,
-                              "Gross heating value of the cargo burned as fuel, oxidised "
-                              "and vented."))
-    else:
-        share = f", {100.0 * lost / loaded:.3f} % of loaded" if loaded else ""
-        sinks = summary.get("energy_lost_by_sink_gj") or {}
-        split = ", ".join(f"{k} {v:,.0f} GJ" for k, v in sinks.items())
-        items.append(Headline("energy_lost", "Energy lost", f"{lost:,.0f} GJ",
-                              f"{summary['energy_lost_mmbtu']:,.0f} MMBtu{share}",
-                              "Gross heating value of the cargo burned as fuel, oxidised "
-                              f"and vented ({split}). Reliquefied vapour is not lost."))
+    def card(key, label, gj, detail, help_text):
+        if gj is None:
+            return Headline(key, label, "—", reason, help_text)
+        return Headline(key, label, f"{gj:,.0f} GJ", detail, help_text)
+
+    items = [card("energy_loaded", "Energy loaded", loaded,
+                  f"{summary.get('energy_loaded_mmbtu') or 0:,.0f} MMBtu",
+                  "Gross heating value of the cargo on board at departure "
+                  "(and loaded at port calls).")]
+    share = f", {100.0 * lost / loaded:.3f} % of loaded" if loaded and lost is not None else ""
+    sinks = summary.get("energy_lost_by_sink_gj") or {}
+    split = ", ".join(f"{k} {v:,.0f} GJ" for k, v in sinks.items())
+    items.append(card("energy_lost", "Energy lost", lost,
+                      f"{summary.get('energy_lost_mmbtu') or 0:,.0f} MMBtu{share}",
+                      "Gross heating value of the cargo burned as fuel, oxidised and vented"
+                      + (f" ({split})" if split else "") + ". Reliquefied vapour is not lost."))
     discharged = (_num(summary.get("delivered_t")) or 0.0) > 0.0
     where = ("discharged at port calls" if discharged else
              "left on board at stop" if stopped else "on board on arrival")
-    if delivered is None:
-        items.append(Headline("energy_delivered", "Energy delivered", "—", reason,
-                              "Gross heating value of the cargo discharged, or on board at the "
-                              "end when the voyage has no port call."))
-    else:
-        items.append(Headline("energy_delivered", "Energy delivered", f"{delivered:,.0f} GJ",
-                              f"{summary['energy_delivered_mmbtu']:,.0f} MMBtu, {where}",
-                              "Gross heating value of the cargo discharged, or on board at the "
-                              "end when the voyage has no port call."))
+    items.append(card("energy_delivered", "Energy delivered", delivered,
+                      f"{summary.get('energy_delivered_mmbtu') or 0:,.0f} MMBtu, {where}",
+                      "Gross heating value of the cargo discharged, or on board at the "
+                      "end when the voyage has no port call."))
     value = _num(summary.get("value_lost"))
     if value is None:
         note = ("no price set (Set-up, cargo prices)" if loaded is not None

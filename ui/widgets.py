@@ -87,6 +87,13 @@ def status_banner(result) -> None:
     (st.error if result.status == "failed" else st.warning)(text, icon=":material/report:")
 
 
+def plot_side_by_side(figures: dict, *names: str, prefix: str = "chart") -> None:
+    """Charts ``figures[name]`` in equal columns, keyed ``<prefix>.<name>``."""
+    for column, name in zip(st.columns(len(names)), names, strict=True):
+        with column:
+            plot(figures[name], f"{prefix}.{name}")
+
+
 def plot(fig, key: str) -> None:
     """A plotly chart with the toolbar trimmed (its camera button saves a PNG)."""
     st.plotly_chart(fig, key=key, theme=None,

@@ -108,6 +108,11 @@ class MixtureEquilibriumModel:
         self.drift_tolerance = DRIFT_TOLERANCE
         self.largest_jump = 0.0
         self.warnings: list[str] = []
+        if table.backend != "HEOS":
+            self.warnings.append(
+                f"mixture properties from {table.backend} (Peng-Robinson): CoolProp's HEOS "
+                "mixture model has no parameters for this composition; liquid densities of a "
+                "cubic equation of state can be ~10 % high")
         self._guess = None
 
     # -- set-up ------------------------------------------------------------------
@@ -131,7 +136,24 @@ class MixtureEquilibriumModel:
         energy = n_l * float(np.dot(x, ul)) + n_v * float(np.dot(y, uv))
         total = n_l + n_v
         self._guess = (temp, n_v / total, math.log(p))
+        self._warn_solids(x, temp)
         return np.concatenate([moles, [energy]])
+
+    def _warn_solids(self, liquid, temperature: float) -> None:
+        """Warn where carbon dioxide in a cold liquid may freeze out (not modelled)."""
+        if "carbon-dioxide" not in self.components:
+            return
+        from ..mixture import _state
+
+        co2 = float(liquid[self.components.index("carbon-dioxide")])
+        t_triple = _state("HEOS", ("CarbonDioxide",), "any").Ttriple()
+        text = (f"carbon dioxide at {1e6 * co2:.0f} ppm in a liquid at "
+                f"{temperature - 273.15:.1f} degC, below CO2's triple point "
+                f"({t_triple - 273.15:.1f} degC): it may freeze out (LNG specifications "
+                "commonly hold CO2 to about 50 ppm - common practice, no source); solids are "
+                "not modelled")
+        if co2 > 0.0 and temperature < t_triple and text not in self.warnings:
+            self.warnings.append(text)
 
     def state_scale(self, y) -> np.ndarray:
         """Magnitudes for absolute tolerances: total moles, and N times 20 kJ/mol."""

@@ -98,11 +98,7 @@ def _mixture(run: state.Run, figures: dict) -> None:
                "so the liquid left behind weathers: its bubble temperature climbs and its "
                "heating value per cubic metre and Wobbe index rise. See Methods.")
     widgets.plot(figures["composition"], "chart.composition")
-    a, b = st.columns(2)
-    with a:
-        widgets.plot(figures["vapour_composition"], "chart.vapour_composition")
-    with b:
-        widgets.plot(figures["liquid_density_kg_m3"], "chart.liquid_density_kg_m3")
+    widgets.plot_side_by_side(figures, "vapour_composition", "liquid_density_kg_m3")
     st.markdown("**Cargo quality, as loaded and at the end of the run**")
     a, b = st.columns([1, 1], gap="medium")
     quality = headline.quality_table(result.summary, result.timeseries)
@@ -155,11 +151,7 @@ def render() -> None:
 
     figures = charts.result_figures(run.label, result, charts.control_levels(run.data))
     widgets.plot(figures["pressure"], "chart.pressure")
-    a, b = st.columns(2)
-    with a:
-        widgets.plot(figures["liquid_temp_c"], "chart.liquid_temp_c")
-    with b:
-        widgets.plot(figures["fill_pct"], "chart.fill_pct")
+    widgets.plot_side_by_side(figures, "liquid_temp_c", "fill_pct")
     widgets.plot(figures["boil_off"], "chart.boil_off")
     if charts.is_mixture(result):
         _mixture(run, figures)
