@@ -771,7 +771,8 @@ def _gross_molar_values(scenario: Scenario):
     names = ([c for c, _ in scenario.mole_fractions] if scenario.mole_fractions is not None
              else [scenario.cargo])
     values = [component_gross_molar(c) for c in names]
-    if any(v is None for v in values):
+    # a cargo that does not burn (CO2, nitrogen) has no heating value to report
+    if any(v is None for v in values) or not any(values):
         return None
     return np.array(values)
 

@@ -338,3 +338,10 @@ def test_pressure_outside_a_mixtures_table_names_its_bubble_point():
     with pytest.raises(ScenarioError, match=r"above the highest pressure covered .* bubble point"):
         loads_scenario(_toml(dict(TYPICAL)).replace("relief_set_barg = 0.7",
                                                      "relief_set_barg = 80.0"), "t")
+
+
+def test_cargo_that_does_not_burn_has_no_energy_figures():
+    """Carbon dioxide: ISO 6976 gross calorific value 0, so energy figures are null, not 0."""
+    s = simulate(load_scenario(demo_scenarios()["co2-near-triple"])).summary
+    assert s["energy_loaded_gj"] is None and s["energy_lost_gj"] is None
+    assert s["quality_start"]["gcv_mj_kg"] == 0.0

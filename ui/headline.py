@@ -80,8 +80,10 @@ def no_energy_reason(summary: dict) -> str:
     """Why a run has no energy figures: the components without an ISO 6976 heating value."""
     from sim.energy import component_gross_molar
 
-    names = [c for c in summary.get("initial_composition") or {}
-             if component_gross_molar(c) is None]
+    composition = summary.get("initial_composition") or {}
+    names = [c for c in composition if component_gross_molar(c) is None]
+    if not names and composition and not any(component_gross_molar(c) for c in composition):
+        return f"{summary.get('cargo', 'the cargo')} does not burn: no heating value"
     return f"no ISO 6976 heating value for {', '.join(names) or summary.get('cargo', 'the cargo')}"
 
 
