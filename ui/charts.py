@@ -48,6 +48,8 @@ MARKED_EVENTS = {
     "fuel-resume": ("Engines back on gas", "diamond", "#5f7185"),
     "liquid-full": ("Liquid-full", "square", "#111111"),
     "vacuum": ("Below vacuum level", "star-open", "#6b4c9a"),
+    "mixing": ("Liquid stirred", "hourglass-open", "#3f86a8"),
+    "port-call": ("Port call", "square-open", "#5d6d7e"),
 }
 #: Outage windows shaded on the single-run pressure chart: start kind -> (end kind, words).
 OUTAGE_BANDS = {
@@ -155,7 +157,9 @@ def _event_points(result: VoyageResult, kind: str, column: str):
     ts = result.timeseries
     t = ts["time_h"].to_numpy(dtype=float)
     y = np.interp(hours, t, ts[column].to_numpy(dtype=float))
-    details = [e.detail for e in result.events if e.kind == kind]
+    from .headline import plain_detail
+
+    details = [plain_detail(e.detail) for e in result.events if e.kind == kind]
     return [h / 24.0 for h in hours], list(y), details
 
 
@@ -179,10 +183,15 @@ def _add_bands(fig: go.Figure, result: VoyageResult) -> None:
         ends = sorted(_event_times(result, end_kind))
         for t0 in starts:
             t1 = next((t for t in ends if t > t0), end_h)
-            fig.add_vrect(x0=t0 / 24.0, x1=t1 / 24.0, fillcolor="#7d8b96", opacity=0.13,
-                          line_width=0, layer="below", annotation_text=words,
-                          annotation_position="top left",
-                          annotation_font={"size": 11, "color": "#4a5963"})
+            add_window(fig, t0 / 24.0, t1 / 24.0, words)
+
+
+def add_window(fig: go.Figure, start_day: float, end_day: float, words: str) -> go.Figure:
+    """Shade a window of days (an outage, a what-if failure), labelled at its top left."""
+    fig.add_vrect(x0=start_day, x1=end_day, fillcolor="#7d8b96", opacity=0.13, line_width=0,
+                  layer="below", annotation_text=words, annotation_position="top left",
+                  annotation_font={"size": 11, "color": "#4a5963"})
+    return fig
 
 
 def _add_leg_marks(fig: go.Figure, result: VoyageResult) -> None:
@@ -242,7 +251,24 @@ def pressure_figure(runs: Sequence[tuple[str, VoyageResult]], levels: Sequence[L
     if single and runs:
         _add_bands(fig, runs[0][1])
         _add_leg_marks(fig, runs[0][1])
-    return _style(fig, "pressure", "Tank pressure", "Pressure (barg)", height)
+    fig = _style(fig, "pressure", "Tank pressure", "Pressure (barg)", height)
+    _pad_pressure_axis(fig, runs, levels)
+    return fig
+
+
+def _pad_pressure_axis(fig: go.Figure, runs, levels: Sequence[Level]) -> None:
+    """Leave room below the lowest curve or set line (the leg names sit there) and above the
+    highest (the set-line labels sit there), so neither is drawn over a curve."""
+    values = [float(v) for _, result in runs
+              for v in (np.nanmin(result.timeseries["pressure_barg"].to_numpy(dtype=float)),
+                        np.nanmax(result.timeseries["pressure_barg"].to_numpy(dtype=float)))]
+    values += [level.barg for level in levels]
+    values = [v for v in values if math.isfinite(v)]
+    if not values:
+        return
+    low, high = min(values), max(values)
+    span = high - low if high > low else max(abs(high) * 0.1, 0.01)
+    fig.update_yaxes(range=[low - 0.12 * span, high + 0.08 * span])
 
 
 def line_figure(runs: Sequence[tuple[str, VoyageResult]], column: str, title: str, ytitle: str,
@@ -437,3 +463,31 @@ def overlay_figures(runs: Sequence[tuple[str, VoyageResult]],
         "boil_off_kg_h": total_boil_off_figure(runs),
         "cargo_loss_t": cargo_loss_figure(runs),
     }
+
+
+#: Unit spellings of the engine's plain-text figures -> the app's (°C, m²).
+UNIT_WORDS = (("degC", "°C"), ("(m2 K)", "(m² K)"), ("m2K", "m²K"))
+
+
+def _units(text):
+    if not isinstance(text, str):
+        return text
+    for old, new in UNIT_WORDS:
+        text = text.replace(old, new)
+    return text
+
+
+def trade_units(fig: go.Figure) -> go.Figure:
+    """The engine's figures (sizing, sweeps) with units spelled as on the rest of the app."""
+    if fig.layout.title.text:
+        fig.layout.title.text = _units(fig.layout.title.text)
+    for axis in (*fig.select_xaxes(), *fig.select_yaxes()):
+        if axis.title.text:
+            axis.title.text = _units(axis.title.text)
+    for note in fig.layout.annotations or ():
+        note.text = _units(note.text)
+    for trace in fig.data:
+        for attr in ("name", "hovertemplate"):
+            if getattr(trace, attr, None):
+                setattr(trace, attr, _units(getattr(trace, attr)))
+    return fig

@@ -43,6 +43,16 @@ def result_json(result: VoyageResult) -> str:
     return summary_json(result)
 
 
+def comparison_csv(frame) -> str:
+    """The comparison table (figures × runs) as CSV, the caution in the first line's one cell.
+
+    Not a ``#`` comment: the run labels in the header start with ``#``. Read it back
+    with ``pandas.read_csv(path, skiprows=1, index_col=0)``.
+    """
+    caution = "Caution: " + CAUTION
+    return '"' + caution.replace('"', '""') + '"\n' + frame.to_csv(float_format="%.6g")
+
+
 def charts_html(figures: Mapping[str, go.Figure], title: str) -> str:
     """One self-contained HTML page holding every chart (plotly.js embedded once, works offline)."""
     parts = []

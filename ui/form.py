@@ -19,6 +19,7 @@ defaults written out, so a downloaded set-up always spells every value.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from typing import Any
 
@@ -169,7 +170,7 @@ def choice_label(key: str, name: str) -> str:
         info = CATALOGUE[name]
         return f"{info.label} ({info.formula})"
     if key == "model":
-        return name.replace("-", " ").capitalize()
+        return name[:1].upper() + name[1:]  # "two-zone" -> "Two-zone", the term Methods uses
     if key == "insulation.basis":
         return {"rated_bor_pct_day": "Rated BOR", "u_w_m2k": "U-value"}.get(name, name)
     if key == "cargo.kind":
@@ -619,3 +620,51 @@ def field_of_problem(problem: str) -> str | None:
     if head in FIELDS:
         return head
     return None
+
+
+def _number_words(text: str) -> str:
+    """A mole fraction as the engine prints it (``"0.9"``) in mole percent (``"90"``)."""
+    try:
+        return f"{100.0 * float(text):.9g}"
+    except ValueError:
+        return text
+
+
+def explain(problem: str) -> str:
+    """A validation message with the form's own words in front.
+
+    The engine names file keys (``tank.fill_pct = 120.0: ...``, ``leg[2].days``,
+    mole fractions from 0 to 1), and the same message reaches the command line;
+    the form shows labels, table rows and mole percent. So the message is kept
+    as the engine wrote it (``degC`` shown as °C), led by the field's label in
+    bold, and a mole fraction is restated in the table's mole percent.
+    """
+    text = problem.replace("degC", "°C")
+    match = re.match(r"\[cargo\.mole_fractions\] sum to (\S+): ", text)
+    if match:
+        return (f"**Composition** — {text}. The table sums to {_number_words(match[1])} mol %: "
+                "correct an entry, or press 'Scale to 100 %'")
+    match = re.match(r"cargo\.mole_fractions\.([\w-]+) = (\S+): must be (?:a number )?from 0 "
+                     r"to 1 \(mole fraction\)", text)
+    if match:
+        return (f"**Composition, {component_words(match[1])}** — {text}; in the table that "
+                f"is {_number_words(match[2])} mol % (allowed: 0 to 100)")
+    if text.startswith("leg: at least one"):
+        return f"**Voyage legs** — {text}: add a row to the table"
+    match = re.match(r"leg\[(\d+)\]\.(\w+)", text)
+    if match:
+        column = LEG_COLUMNS.get(match[2], (match[2],))[0]
+        return f"**Voyage legs, row {match[1]}, {column}** — {text}"
+    match = re.match(r"(\w+)\.outage\[(\d+)\]\.(\w+)", text)
+    if match and match[1] in EQUIPMENT:
+        column = OUTAGE_COLUMNS.get(match[3], (match[3],))[0]
+        return (f"**Plant outages, {EQUIPMENT[match[1]].lower()} outage {match[2]}, "
+                f"{column}** — {text}")
+    # the form's own checks, already in its words
+    for start, words in (("Mixing on days", "Mixing on days"), ("Outages", "Plant outages")):
+        if text.startswith(start):
+            return f"**{words}** — {text[len(start):].lstrip(':, ')}"
+    head = text.split(" ", 1)[0].rstrip(":")
+    if head in FIELDS and FIELDS[head].kind != "flag":
+        return f"**{FIELDS[head].label.split(' (', 1)[0]}** — {text}"
+    return text

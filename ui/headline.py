@@ -78,13 +78,18 @@ def headlines(summary: dict) -> list[Headline]:
 
 def no_energy_reason(summary: dict) -> str:
     """Why a run has no energy figures: the components without an ISO 6976 heating value."""
+    from sim.cargo import CATALOGUE
     from sim.energy import component_gross_molar
 
+    def words(name: str) -> str:
+        return CATALOGUE[name].label if name in CATALOGUE else name
+
     composition = summary.get("initial_composition") or {}
-    names = [c for c in composition if component_gross_molar(c) is None]
+    names = [words(c) for c in composition if component_gross_molar(c) is None]
+    cargo = words(str(summary.get("cargo", "the cargo")))
     if not names and composition and not any(component_gross_molar(c) for c in composition):
-        return f"{summary.get('cargo', 'the cargo')} does not burn: no heating value"
-    return f"no ISO 6976 heating value for {', '.join(names) or summary.get('cargo', 'the cargo')}"
+        return f"{cargo} does not burn: no heating value"
+    return f"no ISO 6976 heating value for {', '.join(names) or cargo}"
 
 
 def energy_headlines(summary: dict) -> list[Headline]:
@@ -256,7 +261,7 @@ def compare_display(frame: pd.DataFrame) -> pd.DataFrame:
         for col in frame.columns:
             x = frame.loc[row, col]
             if pd.isna(x):
-                out.loc[row, col] = "does not lift" if row.startswith("Relief") else "–"
+                out.loc[row, col] = "does not lift" if row.startswith("Relief") else "—"
             else:
                 out.loc[row, col] = formats.get(row, "{:.4g}").format(x)
     return out.astype(str)
@@ -282,7 +287,15 @@ EVENT_WORDS = {
     "low-pressure-limit": "Below modelled range",
     "near-critical": "Near critical point",
     "loading-limit-exceeded": "Above IGC loading limit",
+    "port-call": "Port call",
+    "mixing": "Liquid stirred",
+    "heel-exhausted": "Heel used up",
 }
+
+
+def plain_detail(text: str) -> str:
+    """An engine event detail for the screen: °C for ``degC``, an arrow for ``->``."""
+    return str(text).replace("degC", "°C").replace(" -> ", " → ")
 
 
 def events_table(events: pd.DataFrame) -> pd.DataFrame:
@@ -292,7 +305,7 @@ def events_table(events: pd.DataFrame) -> pd.DataFrame:
         "Hour": events["time_h"].astype(float),
         "Event": [EVENT_WORDS.get(k, str(k).replace("-", " ").capitalize())
                   for k in events["kind"]],
-        "Detail": events["detail"].astype(str),
+        "Detail": [plain_detail(d) for d in events["detail"]],
         "kind": events["kind"].astype(str),
     })
     return out.reset_index(drop=True)
@@ -311,8 +324,18 @@ def model_pair(label_a: str, summary_a: dict, label_b: str, summary_b: dict) -> 
         note = f"{label_b} minus {label_a}"
         if ha > 0:
             note += f"; ratio {hb / ha:.2f}"
+    elif ha is None and hb is None:
+        value, note = "—", "the relief valves lift in neither run"
     else:
-        value, note = "n/a", "the valve does not lift in both runs"
+        lifts, hours, holds, summary = ((label_a, ha, label_b, summary_b) if hb is None
+                                        else (label_b, hb, label_a, summary_a))
+        end_h = 24.0 * (_num(summary.get("simulated_days")) or 0.0)
+        if end_h > hours:
+            value = f"Over {end_h - hours:.1f} h"
+            note = (f"the {lifts} model lifts at least that much earlier; the {holds} model "
+                    "holds to the end of the run")
+        else:
+            value, note = "—", f"only the {lifts} model lifts the valves (after {hours:.1f} h)"
     items.append(Headline("relief:difference", "Difference in time to lift", value, note,
                           "How much the choice of tank model moves the relief-valve lift."))
     return items

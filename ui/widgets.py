@@ -37,8 +37,14 @@ def field(key: str, where=None, **kwargs):
     return where.empty()
 
 
-def problem_list(problems: list[str], head: str) -> None:
-    """All problems in one box, each on its own line."""
+def problem_list(problems: list[str], head: str, setup: bool = False) -> None:
+    """All problems in one box, each on its own line.
+
+    ``setup=True``: problems of the set-up, worded with the form's labels (see
+    :func:`ui.form.explain`).
+    """
+    if setup:
+        problems = [form.explain(p) for p in problems]
     lines = "\n".join(f"- {p}" for p in problems)
     st.error(f"**{head}**\n\n{lines}", icon=":material/error:")
 

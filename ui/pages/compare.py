@@ -64,7 +64,7 @@ def render() -> None:
         widgets.plot(figures["cargo_loss_t"], "compare.cargo_loss_t")
 
     a, b, _ = st.columns([1, 1, 2])
-    a.download_button("Table (.csv)", data=frame.to_csv(float_format="%.6g"),
+    a.download_button("Table (.csv)", data=exports.comparison_csv(frame),
                       file_name="comparison.csv", mime="text/csv", key="compare.dl.csv",
                       icon=":material/table:", width="stretch")
     b.download_button("Charts (.html)",

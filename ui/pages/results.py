@@ -14,7 +14,8 @@ def _run_current() -> None:
     data, form_problems = state.setup_dict()
     check = runner.check(data, form_problems)
     if not check.ok:
-        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up:")
+        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up:",
+                             setup=True)
         return
     text = exports.setup_toml(data)
     outcome = runner.run(text)

@@ -263,7 +263,7 @@ def _inputs() -> dict:
         base = state.table_base(state.LEG_EDITOR)
         edited = st.data_editor(
             base, key=state.LEG_EDITOR, num_rows="dynamic", hide_index=True,
-            width="stretch",
+            width="stretch", placeholder="—",
             column_config={
                 "name": st.column_config.TextColumn(LEG_COLUMNS["name"][0],
                                                     help=LEG_COLUMNS["name"][1], width="medium"),
@@ -301,7 +301,7 @@ def _inputs() -> dict:
         base = state.table_base(state.OUTAGE_EDITOR)
         edited = st.data_editor(
             base, key=state.OUTAGE_EDITOR, num_rows="dynamic", hide_index=True,
-            width="stretch",
+            width="stretch", placeholder="—",
             column_config={
                 "equipment": st.column_config.SelectboxColumn(
                     OUTAGE_COLUMNS["equipment"][0], help=OUTAGE_COLUMNS["equipment"][1],
@@ -362,7 +362,7 @@ def _side(check: runner.Check, data: dict) -> None:
         elif check.ok:
             st.caption(f"Derived facts unavailable: {check.facts['error']}")
         else:
-            widgets.problem_list(check.problems, "Fix these before running:")
+            widgets.problem_list(check.problems, "Fix these before running:", setup=True)
 
         text = exports.setup_toml(data) if check.ok else None
         clicked = st.button("Run the voyage", key="run", type="primary", disabled=not check.ok,
@@ -398,7 +398,8 @@ def render() -> None:
         by_field.setdefault(form.field_of_problem(problem), []).append(problem)
     for key, problems in by_field.items():
         if key in slots:
-            slots[key].error("\n\n".join(problems), icon=":material/error:")
+            slots[key].error("\n\n".join(form.explain(p) for p in problems),
+                             icon=":material/error:")
     with right:
         _side(check, data)
 

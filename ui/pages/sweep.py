@@ -13,7 +13,7 @@ from __future__ import annotations
 import streamlit as st
 
 from sim import sweep
-from ui import exports, runner, state, widgets
+from ui import charts, exports, runner, state, widgets
 
 RESULT = "sweep.result"
 #: Largest sweep the app runs (serially, in the server process).
@@ -89,6 +89,37 @@ def _run(data: dict, mode: str, items, total: int, cases: int, seed: int | None)
     return result
 
 
+def _nothing_to_draw(result: sweep.SweepResult, fig) -> str:
+    """Why a Monte Carlo histogram would be empty or a single bar; "" when it is worth drawing.
+
+    With no case lifting the relief valves the time-to-lift histogram has no data, and
+    when every case gives the same cargo lost its three percentile labels sit on top of
+    one another; the percentile card above says all there is to say.
+    """
+    key = (fig.layout.meta or {}).get("chart") if isinstance(fig.layout.meta, dict) else None
+    if key not in ("time_to_relief_h", "cargo_loss_t"):
+        return ""
+    values = [float(r[key]) for r in result.rows
+              if not r.get("error") and r.get(key) is not None]
+    if key == "time_to_relief_h" and not values:
+        return "No histogram of the time to relief-valve lift: the valves lift in no case."
+    if key == "cargo_loss_t" and values and max(values) - min(values) < 0.05:
+        return (f"No histogram of the cargo lost: every case loses {values[0]:,.1f} t "
+                "(to the tenth of a tonne).")
+    return ""
+
+
+def _stagger_percentiles(fig):
+    """Put the P10 / P50 / P90 labels of a histogram on three heights, on a light ground,
+    so close ones stay readable instead of printing over one another or over the bars."""
+    notes = [a for a in fig.layout.annotations or () if str(a.text or "")[:3] in
+             ("P10", "P50", "P90")]
+    for i, note in enumerate(notes):
+        note.yshift = -18 * i
+        note.bgcolor = "rgba(255, 255, 255, 0.85)"
+    return fig
+
+
 def _show(result: sweep.SweepResult) -> None:
     n, bad = len(result.rows), len(result.invalid)
     st.success(f"{n} cases, {bad} invalid, {result.info.seconds:.1f} s.",
@@ -116,8 +147,15 @@ def _show(result: sweep.SweepResult) -> None:
     else:
         figures = [sweep.sweep_figure(result)]
     for i, fig in enumerate(figures):
-        widgets.plot(fig, f"sweep.chart.{i}")
-    st.dataframe(result.frame(), key="sweep.table", width="stretch", hide_index=True)
+        empty = _nothing_to_draw(result, fig)
+        if empty:
+            st.caption(f":material/bar_chart_off: {empty}")
+            continue
+        widgets.plot(_stagger_percentiles(charts.trade_units(fig)), f"sweep.chart.{i}")
+    st.dataframe(result.frame(), key="sweep.table", width="stretch", hide_index=True,
+                 placeholder="—")
+    st.caption("One row per case, columns as in sweep.csv; time_to_relief_h reads — where the "
+               "relief valves do not lift.")
     files = sweep.output_files(result, "set-up")
     stem = exports.file_stem(result.title)
     cols = st.columns(len(files))
@@ -136,7 +174,8 @@ def render() -> None:
     data, form_problems = state.setup_dict()
     check = runner.check(data, form_problems)
     if not check.ok:
-        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up first:")
+        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up first:",
+                             setup=True)
         return
     mode, lines, cases, seed, submitted = _inputs()
     if submitted:

@@ -11,6 +11,8 @@ WHICH_WORDS = {
     "reliquefaction": "Reliquefaction plant trips",
     "all": "All pressure control fails (engines, plant, oxidiser)",
 }
+#: Words on the shaded failure window of the pressure chart.
+WINDOW_WORDS = {"reliquefaction": "plant down", "all": "all pressure control lost"}
 PAIR = "whatif.pair"
 MEMORY = "_whatif"
 
@@ -88,14 +90,42 @@ def _run_pair(data: dict, which: str, start: float, hours: float | None) -> None
             widgets.problem_list(outcome.problems, f"The {kind} run did not complete:")
             return
         outcomes.append(state.keep_run(text, scenario, outcome.result, kind))
-    st.session_state[PAIR] = (outcomes[0].id, outcomes[1].id, start)
+    st.session_state[PAIR] = (outcomes[0].id, outcomes[1].id, start, which, hours)
 
 
 def _relief_hours(run) -> float | None:
     return run.result.summary.get("time_to_relief_h")
 
 
-def _show_pair(base: state.Run, what: state.Run, failure_day: float) -> None:
+def _crew_time(base: state.Run, what: state.Run, failure_day: float) -> None:
+    """The card a trainer reads first: hours from the failure to the first relief lift."""
+    h0, h1 = _relief_hours(base), _relief_hours(what)
+    fail_h = failure_day * 24.0
+    if h1 is None:
+        end_h = 24.0 * float(what.result.summary.get("simulated_days", failure_day))
+        margin = what.result.summary.get("margin_to_relief_bar") or 0.0
+        st.metric("Time from failure to relief lift", f"Over {end_h - fail_h:,.0f} h",
+                  help="The relief valves do not lift between the failure and the end of "
+                       "the run.")
+        st.caption(f"no lift before the end of the run (day {end_h / 24.0:g}); "
+                   f"{margin:.3f} bar margin left at the peak")
+    elif h1 <= fail_h:
+        st.metric("Time from failure to relief lift", "Lifted before",
+                  help="The relief valves already lift before the failure.")
+        st.caption(f"the valves first lift on day {h1 / 24.0:.2f}, before the failure on "
+                   f"day {failure_day:g}")
+    else:
+        st.metric("Time from failure to relief lift", f"{h1 - fail_h:,.1f} h",
+                  help="Hours between the failure and the first relief-valve lift.")
+        if h0 is None:
+            st.caption("as set up, the relief valves do not lift at all")
+        else:
+            st.caption(f"{h0 - h1:+.1f} h earlier than as set up" if h0 > h1
+                       else "the same first lift as set up")
+
+
+def _show_pair(base: state.Run, what: state.Run, failure_day: float, which: str | None = None,
+               hours: float | None = None) -> None:
     from ui.headline import relief_text
 
     a, b, c = st.columns(3)
@@ -105,25 +135,17 @@ def _show_pair(base: state.Run, what: state.Run, failure_day: float) -> None:
             st.metric(f"Relief valve: {words.lower()}", value,
                       help="First lift of the relief valves in this run.")
             st.caption(f"{note} · {run.label}")
-    h0, h1 = _relief_hours(base), _relief_hours(what)
     with c.container(border=True):
-        if h1 is None:
-            st.metric("Time the crew has", "Whole voyage",
-                      help="The relief valves do not lift even with the failure.")
-            st.caption("the failure does not bring the tanks to the relief set pressure")
-        else:
-            fail_h = failure_day * 24.0
-            st.metric("Time from failure to relief lift", f"{h1 - fail_h:.1f} h",
-                      help="Hours between the failure and the first relief-valve lift.")
-            if h0 is None:
-                st.caption("as set up, the relief valves do not lift at all")
-            else:
-                st.caption(f"{h0 - h1:+.1f} h earlier than as set up" if h0 > h1
-                           else "the same first lift as set up")
+        _crew_time(base, what, failure_day)
 
     runs = [("As set up", base.result), ("With the failure", what.result)]
     levels = charts.control_levels(base.data)
-    widgets.plot(charts.pressure_figure(runs, levels), "whatif.pressure")
+    fig = charts.pressure_figure(runs, levels)
+    end_day = float(what.result.summary.get("simulated_days", failure_day))
+    charts.add_window(fig, failure_day,
+                      end_day if hours is None else min(failure_day + hours / 24.0, end_day),
+                      WINDOW_WORDS.get(which, "failure"))
+    widgets.plot(fig, "whatif.pressure")
     left, right = st.columns(2)
     with left:
         widgets.plot(charts.total_boil_off_figure(runs), "whatif.boil_off")
@@ -140,7 +162,8 @@ def render() -> None:
     data, form_problems = state.setup_dict()
     check = runner.check(data, form_problems)
     if not check.ok:
-        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up first:")
+        widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up first:",
+                             setup=True)
         return
     which, start, hours, clicked = _controls(data)
     if clicked:
@@ -152,7 +175,10 @@ def render() -> None:
     pair = st.session_state.get(PAIR)
     kept = state.runs()
     if pair and all(rid in kept for rid in pair[:2]):
-        _show_pair(kept[pair[0]], kept[pair[1]], pair[2])
+        if kept[pair[0]].toml != exports.setup_toml(data):
+            st.warning(f"These runs are of an earlier set-up ({kept[pair[0]].label}); press "
+                       "**Run both** to run the current one.", icon=":material/update:")
+        _show_pair(kept[pair[0]], kept[pair[1]], *pair[2:])
     elif not clicked:
         st.info("Choose what fails and when, then press **Run both**.", icon=":material/info:")
 
