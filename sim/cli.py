@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+from pathlib import Path
 
 from . import CAUTION, __version__
 
@@ -60,6 +61,34 @@ def _load(path: str):
         return None
 
 
+def _out_problem(out) -> str | None:
+    """Why ``--out`` cannot be an output folder, or None; checked before any run.
+
+    An empty name would write into the current folder; a file (or a file on
+    the way to the folder) would only fail after the whole run.
+    """
+    text = str(out)
+    if not text.strip():
+        return f"--out {text!r}: give the name of an output folder (created if missing)"
+    path = Path(text)
+    for place in (path, *path.parents):
+        if place.exists():
+            if not place.is_dir():
+                what = "is a file" if place == path else f"lies inside {place}, a file"
+                return (f"--out {text}: {what}, not a folder; give an output folder "
+                        "(created if missing)")
+            break
+    return None
+
+
+def _check_out(out) -> bool:
+    """Print the ``--out`` problem, if any; True if the folder can be used."""
+    problem = _out_problem(out)
+    if problem is not None:
+        print(f"error: {problem}", file=sys.stderr)
+    return problem is None
+
+
 def cmd_validate(args) -> int:
     """Check a scenario file and print the derived facts."""
     scenario = _load(args.scenario)
@@ -89,10 +118,17 @@ def cmd_run(args) -> int:
     scenario = _load(args.scenario)
     if scenario is None:
         return EXIT_BAD_INPUT
+    if not _check_out(args.out):
+        return EXIT_BAD_INPUT
     from .results import write_outputs
     from .voyage import simulate
 
-    result = simulate(scenario)
+    try:
+        result = simulate(scenario)
+    except Exception as exc:  # noqa: BLE001 - a failed run is exit 1, never a traceback
+        print(f"error: the simulation failed: {type(exc).__name__}: {exc}; nothing written",
+              file=sys.stderr)
+        return EXIT_FAILED
     try:
         written = write_outputs(result, args.out)
     except OSError as err:
@@ -165,6 +201,8 @@ def cmd_size(args) -> int:
     scenario = _load(args.scenario)
     if scenario is None:
         return EXIT_BAD_INPUT
+    if not _check_out(args.out):
+        return EXIT_BAD_INPUT
     from .scenario import ScenarioError
     from .sizing import SizingError, output_files, size_plant, summary_lines
     from .sweep import write_files
@@ -236,6 +274,11 @@ def cmd_sweep(args) -> int:
         problems.append("--cases and --seed go with --sample (Monte Carlo)")
     if args.workers is not None and args.workers < 1:
         problems.append(f"--workers {args.workers}: must be 1 or more")
+    if args.seed is not None and args.seed < 0:
+        problems.append(f"--seed {args.seed}: must be a whole number at or above 0")
+    out_problem = _out_problem(args.out)
+    if out_problem is not None:
+        problems.append(out_problem)
     variations, distributions = [], []
     for text in varies:
         try:
@@ -494,6 +537,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    from .errors import InputError
+
     parser = build_parser()
     args = parser.parse_args(argv)
     try:
@@ -504,6 +549,12 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:  # output piped into `head` and the like
         sys.stderr.close()
         return EXIT_OK
+    except InputError as err:  # bad input found past the usual checks
+        _problems("", err.problems)
+        return EXIT_BAD_INPUT
+    except Exception as exc:  # noqa: BLE001 - the last guard: a message, never a traceback
+        print(f"error: {args.command} failed: {type(exc).__name__}: {exc}", file=sys.stderr)
+        return EXIT_FAILED
 
 
 if __name__ == "__main__":  # pragma: no cover

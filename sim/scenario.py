@@ -244,6 +244,19 @@ SCENARIO_DIR = Path(__file__).resolve().parent.parent / "scenarios"
 #: Default vacuum warning level [barg].
 DEFAULT_VACUUM_BARG = -0.05
 
+#: Largest size of any number in a scenario file (file units). Far above any
+#: real tank, rate, time or price, far below where products of them overflow
+#: to inf in the run (a tank of 1e300 m gives an infinite cargo mass).
+MAX_NUMBER = 1e12
+
+#: Longest voyage, all legs together [days]. The run keeps hourly rows, so its
+#: time and memory grow with the voyage; ten years covers any voyage and the
+#: longest holding-time horizon of ``size``.
+MAX_VOYAGE_DAYS = 3650.0
+
+#: Most identical tanks in one scenario.
+MAX_TANKS = 1000
+
 
 @dataclass(frozen=True)
 class KeySpec:
@@ -690,6 +703,10 @@ class _Checker:
         if not spec.in_range(x):
             self.add(f"{path} = {_show(value)}: must be {spec.range_text()}")
             return None
+        if abs(x) > MAX_NUMBER:
+            self.add(f"{path} = {_show(value)}: too large; allowed: {spec.range_text()}, "
+                     f"at most {MAX_NUMBER:g} in size")
+            return None
         return x
 
     def integer(self, data: dict, prefix: str, spec: KeySpec) -> int | None:
@@ -859,6 +876,8 @@ def parse_scenario(data: dict, source: str = "") -> Scenario:
     fluid, fractions, table, prices = _parse_cargo(check, data, model)
     tank_spec, tank_values = _parse_tank(check, data, table)
     insulation = _parse_insulation(check, data)
+    if not _rating_is_warmer(check, data, insulation, tank_spec, table):
+        insulation = None
     legs = _parse_legs(check, data)
     voyage_days = None
     if legs is not None and all(leg is not None for leg in legs):
@@ -1043,13 +1062,19 @@ def _parse_tank(check: _Checker, data: dict, table: SaturationTable | None):
                 shape = make_shape(shape_name, **kwargs)
                 volume = shape.volume()
                 if not (math.isfinite(volume) and volume > 0.0):
-                    check.add(f"tank: the dimensions give a volume of {volume!r} m3")
+                    given = ", ".join(f"{k} = {_show(tank[k])}" for k in needed)
+                    check.add(f"tank: {given} give a volume of {volume!r} m3; the dimensions "
+                              "must give a tank of some size (above 0 m3)")
                     shape = None
             except (ValueError, TypeError, ArithmeticError) as exc:
                 text = str(exc)
                 check.add(text if text.startswith("tank.") else f"tank: {text}")
 
     count = check.integer(tank, "tank", spec["count"])
+    if count is not None and count > MAX_TANKS:
+        check.add(f"tank.count = {_show(count)}: must be {spec['count'].range_text()}, "
+                  f"at most {MAX_TANKS}")
+        count = None
     fill = check.number(tank, "tank", spec["fill_pct"])
     pressure = check.number(tank, "tank", spec["pressure_barg"])
     relief = check.number(tank, "tank", spec["relief_set_barg"])
@@ -1140,6 +1165,34 @@ def _parse_insulation(check: _Checker, data: dict) -> Insulation | None:
     )
 
 
+def _rating_is_warmer(check: _Checker, data: dict, insulation: Insulation | None,
+                      tank: TankSpec | None, table: SaturationTable | None) -> bool:
+    """A rated boil-off needs a rated ambient warmer than the cargo; report if not.
+
+    The calibration (:func:`sim.heat.u_value_from_rated_bor`) divides by the
+    area-weighted temperature difference between the rated ambient and the
+    cargo at its initial pressure; at or below zero there is nothing to divide.
+    """
+    if insulation is None or insulation.rated_bor is None or tank is None or table is None:
+        return True
+    cargo_t = table.temperature(tank.pressure)
+    f = insulation.air_exposed_fraction
+    ambient = f * insulation.rated_air_temperature + (1.0 - f) * insulation.rated_sea_temperature
+    if ambient > cargo_t:
+        return True
+    ins, spec = data["insulation"], SCHEMA["insulation"]
+
+    def given(key: str) -> str:
+        return _show(ins[key]) if key in ins else f"{_num(spec[key].default)} (the default)"
+
+    check.add(f"insulation.rated_air_c = {given('rated_air_c')}, insulation.rated_sea_c = "
+              f"{given('rated_sea_c')} with air_exposed_pct = {given('air_exposed_pct')}: the "
+              f"rated ambient ({k_to_c(ambient):.2f} degC, area-weighted) must be warmer than "
+              f"the cargo at tank.pressure_barg = {_show(data['tank']['pressure_barg'])} "
+              f"({k_to_c(cargo_t):.2f} degC), or rated_bor_pct_day cannot be calibrated")
+    return False
+
+
 def _parse_legs(check: _Checker, data: dict) -> list[Leg | None] | None:
     items = check.array(data, "leg", "")
     if items is None:
@@ -1172,6 +1225,17 @@ def _parse_legs(check: _Checker, data: dict) -> list[Leg | None] | None:
             fuel_demand=kg_h_to_kg_s(v["fuel_kg_h"]),
             start_fill=None if v["start_fill_pct"] is None else v["start_fill_pct"] / 100.0,
         ))
+    if all(leg is not None for leg in legs):
+        total = math.fsum(leg.duration for leg in legs) / SECONDS_PER_DAY
+        if total > MAX_VOYAGE_DAYS * (1.0 + 1e-12):
+            longest = max(range(len(legs)), key=lambda i: legs[i].duration)
+            days = _show(items[longest]["days"])
+            what = (f"leg[{longest + 1}].days = {days}" if len(legs) == 1
+                    else f"leg: the {len(legs)} legs add up to {_num(round(total, 6))} days "
+                    f"(longest leg[{longest + 1}].days = {days})")
+            check.add(f"{what}: the voyage may last at most {_num(MAX_VOYAGE_DAYS)} days "
+                      "(ten years) in all")
+            return [None]
     return legs
 
 
@@ -1337,10 +1401,18 @@ def loads_scenario(text: str, source: str = "<text>") -> Scenario:
     """
     if not isinstance(text, str):
         raise ScenarioError(f"scenario text must be a string, not {_kind(text)}", source)
+    if text.startswith("\ufeff"):  # a byte-order mark, as some Windows editors write
+        text = text[1:]
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ScenarioError(f"TOML syntax error: {exc}", source) from None
+    except ValueError as exc:  # Python refuses integers of more than 4300 digits
+        why = str(exc)
+        if "digits" in why:
+            why = ("a whole number has more than 4300 digits; no key takes a number that long "
+                   f"(at most {MAX_NUMBER:g} in size)")
+        raise ScenarioError(f"not readable as TOML: {why}", source) from None
     return parse_scenario(data, source)
 
 

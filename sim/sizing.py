@@ -105,6 +105,11 @@ HOLDING_HORIZON_DAYS = 365.0
 CAPACITY_TOLERANCE = 1e-3
 #: Doublings tried before the outage search gives up (2**12 times the start).
 MAX_DOUBLINGS = 12
+#: Largest design margin [%] (beyond it the design capacity is no longer a plant
+#: size; at 1e308 % it is infinite).
+MAX_MARGIN_PCT = 1000.0
+#: Most plant units, duty and stand-by together, that ``unit_kg_h`` may lead to.
+MAX_UNITS = 1000
 
 
 class SizingError(InputError):
@@ -705,7 +710,8 @@ def _check_options(design_air_c, design_sea_c, margin_pct, unit_kg_h, spare_unit
         if not (isinstance(value, int | float) and math.isfinite(value) and spec.in_range(value)):
             problems.append(f"{name} {value}: must be {spec.range_text()}")
     checks = (
-        ("--margin-pct", margin_pct, lambda x: x >= 0.0, "a number at or above 0 (percent)"),
+        ("--margin-pct", margin_pct, lambda x: 0.0 <= x <= MAX_MARGIN_PCT,
+         f"a number at or above 0 and at most {MAX_MARGIN_PCT:g} (percent)"),
         ("--unit-kg-h", unit_kg_h, lambda x: x > 0.0, "a number above 0 (kg/h per unit)"),
         ("--horizon-days", horizon_days, lambda x: 0.0 < x <= 3650.0,
          "above 0 and at most 3650 (days)"),
@@ -718,8 +724,10 @@ def _check_options(design_air_c, design_sea_c, margin_pct, unit_kg_h, spare_unit
             continue
         if not (isinstance(value, int | float) and math.isfinite(value) and ok(value)):
             problems.append(f"{name} {value}: must be {allowed}")
-    if spare_units is not None and (not isinstance(spare_units, int) or spare_units < 0):
-        problems.append(f"--spare-units {spare_units}: must be a whole number at or above 0")
+    if spare_units is not None and (isinstance(spare_units, bool) or not isinstance(
+            spare_units, int) or not 0 <= spare_units < MAX_UNITS):
+        problems.append(f"--spare-units {spare_units}: must be a whole number at or above 0 "
+                        f"and below {MAX_UNITS}")
     if problems:
         raise SizingError(problems)
 
@@ -847,9 +855,15 @@ def size_plant(data: dict, *, design_air_c: float = DESIGN_AIR_C,
     design = required * (1.0 + margin_pct / 100.0)
     units = installed = None
     if unit_kg_h is not None:
-        unit = unit_kg_h / SECONDS_PER_HOUR
-        duty_units = math.ceil(design / unit - 1e-9) if design > 0 else 0
-        units = duty_units + spare_units
+        # units from kg/h on both sides: unit_kg_h / 3600 underflows to 0 for a
+        # denormal unit size, and a tiny unit would need a number beyond float
+        ratio = design * SECONDS_PER_HOUR / unit_kg_h if design > 0 else 0.0
+        if not (math.isfinite(ratio) and math.ceil(ratio - 1e-9) + spare_units <= MAX_UNITS):
+            raise SizingError(
+                f"--unit-kg-h {unit_kg_h:g}: the design capacity {design * SECONDS_PER_HOUR:.1f} "
+                f"kg/h would need {ratio:.3g} units of {unit_kg_h:g} kg/h plus {spare_units} "
+                f"stand-by; at most {MAX_UNITS} units: give a larger unit")
+        units = math.ceil(ratio - 1e-9) + spare_units
         installed = units * unit_kg_h
 
     holding = holding_time(data, air_c=design_air_c, sea_c=design_sea_c,

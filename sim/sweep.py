@@ -30,6 +30,7 @@ import html
 import json
 import math
 import multiprocessing
+import operator
 import os
 import tempfile
 import threading
@@ -165,7 +166,8 @@ def key_spec(data: dict, key: str):
         hint = f" (did you mean {close[0]}?)" if close else ""
         raise SweepError(f"{text}: unknown key {part!r} in {where}{hint}; allowed: "
                          + ", ".join(allowed))
-    raise SweepError(f"{text}: incomplete key")
+    raise SweepError(f"{text}: incomplete key; name one of the keys of [[{table}]] after it "
+                     f"({', '.join(SCHEMA[table])}), e.g. {text}.{next(iter(SCHEMA[table]))}")
 
 
 def _choices(key: str) -> list[str] | None:
@@ -304,12 +306,19 @@ def expand_range(text: str, key: str = "", option: str = "--vary") -> list[int |
     start, stop, step = (_decimal(p, option, key) for p in pieces)
     if step == 0:
         raise SweepError(f"{option} {key}={text}: the step must not be 0")
-    if (stop - start) * step < 0:
+    if (stop < start) != (step < 0) and stop != start:
         raise SweepError(f"{option} {key}={text}: the step {step} goes away from the stop "
                          f"{stop}; use a {'negative' if stop < start else 'positive'} step")
-    count = int((stop - start) / step) + 1  # int() truncates toward 0: floor here
-    if count > MAX_CASES:
-        raise SweepError(f"{option} {key}={text}: {count} values; at most {MAX_CASES} allowed")
+    try:
+        steps = (stop - start) / step
+    except ArithmeticError:  # decimal.Overflow: exponents far beyond any real range
+        steps = None
+    # compare before int(): a range of 1e999999 steps would make a million-digit int
+    if steps is None or steps >= MAX_CASES:
+        many = ("far too many" if steps is None else str(int(steps) + 1)
+                if steps < 10**15 else f"about {steps:.2E}")
+        raise SweepError(f"{option} {key}={text}: {many} values; at most {MAX_CASES} allowed")
+    count = int(steps) + 1  # int() truncates toward 0: floor here
     whole = all(d == d.to_integral_value() and "." not in p and "e" not in p.lower()
                 for d, p in zip((start, stop, step), pieces, strict=True))
     values = [start + i * step for i in range(count)]
@@ -541,6 +550,12 @@ def sample_cases(distributions: Sequence[Distribution], n: int,
         raise SweepError(f"--sample {dupes[0]} is given more than once")
     if not 1 <= n <= MAX_CASES:
         raise SweepError(f"--cases {n}: must be a whole number from 1 to {MAX_CASES}")
+    try:  # numpy's generator takes any whole number at or above 0, and nothing else
+        bad_seed = isinstance(seed, bool) or operator.index(seed) < 0
+    except TypeError:
+        bad_seed = True
+    if bad_seed:
+        raise SweepError(f"--seed {seed}: must be a whole number at or above 0")
     rng = np.random.default_rng(seed)
     columns = [d.draw(rng, n) for d in distributions]
     return [tuple((d.key, float(col[i])) for d, col in zip(distributions, columns, strict=True))
