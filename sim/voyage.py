@@ -477,9 +477,13 @@ class _Voyage:
     def note(self, t: float, kind: str, detail: str) -> None:
         self.events.append(Event(t, kind, detail))
 
-    def note_mode_change(self, t: float, old: Mode | None, new: Mode, state) -> None:
+    def relief_venting(self, mode: Mode) -> bool:
+        """Whether the relief valves vent in a control mode."""
         relief = self.index["relief"]
-        venting = relief in new.active or new.holding == relief
+        return relief in mode.active or mode.holding == relief
+
+    def note_mode_change(self, t: float, old: Mode | None, new: Mode, state) -> None:
+        venting = self.relief_venting(new)
         from .units import pa_to_barg
 
         p_txt = f"{pa_to_barg(state.pressure):.3f} barg"
@@ -728,8 +732,12 @@ def simulate(scenario: Scenario, progress=None):
                 # A rebuilt table moves the pressure by a few tens of pascals; a
                 # sink that was holding may run off or at capacity for seconds to
                 # regain its set pressure. Not news: stay quiet until the mode
-                # returns, or something else happens.
+                # returns, or something else happens -- unless the relief valve
+                # opens or closes (a poor table can step the pressure past it).
                 quiet = True
+                if voyage.relief_open != voyage.relief_venting(mode):
+                    voyage.note_mode_change(t_end, announced, mode, state)
+                    announced, quiet = mode, False
             elif kind == "cross":
                 mode = voyage.choose_mode(state, caps)
             elif kind == "stop-draw":

@@ -345,3 +345,45 @@ def test_cargo_that_does_not_burn_has_no_energy_figures():
     s = simulate(load_scenario(demo_scenarios()["co2-near-triple"])).summary
     assert s["energy_loaded_gj"] is None and s["energy_lost_gj"] is None
     assert s["quality_start"]["gcv_mj_kg"] == 0.0
+
+
+def test_a_table_rebuild_that_steps_past_the_relief_set_is_a_relief_lift(monkeypatch):
+    """A rebuilt table moves the computed pressure by the old table's error. Where that
+    error is large (a poor table) the step can carry the tank past the relief set: the
+    valve then lifts, and the run must say so (event, time to lift). Here a rebuild is
+    forced 500 Pa below the set pressure of a sealed tank and made poor on purpose: the
+    table is rebuilt around a liquid with three times its nitrogen (+0.9 % in pressure;
+    a stand-in for a table far off, not physics)."""
+    import sim.models.mixture_equilibrium as me
+
+    relief = 0.12e5 + 101_325.0
+    skewed_at = []
+    margin = me.MixtureEquilibriumModel.refresh_margin
+
+    def forced_margin(self, state):
+        if skewed_at:
+            return margin(self, state)
+        return (state.pressure - (relief - 500.0)) / 1000.0
+
+    def skewed(self, y):
+        before = self.evaluate(y, 300.0, 300.0).pressure
+        x = np.array(self.table.reference)
+        x[self.components.index("nitrogen")] *= 3.0
+        self.table = MixtureTable(self.components, x / x.sum(), self.table.temperatures,
+                                  backends=(self.table.backend,))
+        self.drift_tolerance = 1.0  # keep the skewed table for the rest of the run
+        skewed_at.append((before, self.evaluate(y, 300.0, 300.0).pressure))
+
+    monkeypatch.setattr(me.MixtureEquilibriumModel, "refresh_margin", forced_margin)
+    monkeypatch.setattr(me.MixtureEquilibriumModel, "refresh", skewed)
+    text = _toml(dict(TYPICAL), legs="""[[leg]]
+days = 0.5
+air_c = 25.0
+sea_c = 20.0""").replace("relief_set_barg = 0.7", "relief_set_barg = 0.12")
+    result = simulate(loads_scenario(text))
+    s = result.summary
+    assert skewed_at and skewed_at[0][0] < relief < skewed_at[0][1], skewed_at
+    lifts = [e for e in result.events if e.kind == "relief-lift"]
+    assert s["vented_t"] > 0.0
+    assert lifts and s["time_to_relief_h"] is not None
+    assert s["time_to_relief_h"] == pytest.approx(lifts[0].time / 3600.0)

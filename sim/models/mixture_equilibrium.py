@@ -61,6 +61,9 @@ DRIFT_TOLERANCE = 1e-3
 PRESSURE_JUMP_TARGET = 5e-4
 #: Bounds of the adaptive drift allowance [-].
 DRIFT_TOLERANCE_RANGE = (2.5e-4, 1e-2)
+#: A rebuild that moves the pressure by more than this [-] says the old table
+#: was poor (ten times the target); the run carries a warning with the size.
+JUMP_WARNING = 5e-3
 #: A rebuilt table spans this far below / above the current temperature [K].
 REFRESH_SPAN = (3.0, 9.0)
 #: Spline node spacing of rebuilt tables [K] (the as-loaded table's 3.3 K
@@ -394,6 +397,14 @@ class MixtureEquilibriumModel:
         self.refreshes += 1
         jump = abs(math.log(self.evaluate(y, 300.0, 300.0).pressure / state.pressure))
         self.largest_jump = max(self.largest_jump, jump)
+        if jump > JUMP_WARNING:
+            words = ("the mixture property table was inaccurate here: rebuilding it around the "
+                     "current liquid moved the computed pressure by")
+            self.warnings[:] = [w for w in self.warnings if not w.startswith(words)]
+            self.warnings.append(
+                f"{words} up to {100.0 * self.largest_jump:.1f} % (at {t - 273.15:.1f} degC, "
+                f"{self.table.backend}); pressures and times near such a step are uncertain by "
+                "about that much")
         if drifted >= 0.5 * self.drift_tolerance:  # a drift rebuild, not a range one
             factor = min(max(PRESSURE_JUMP_TARGET / max(jump, 1e-12), 0.5), 2.0)
             low, high = DRIFT_TOLERANCE_RANGE
