@@ -257,6 +257,32 @@ MAX_VOYAGE_DAYS = 3650.0
 #: Most identical tanks in one scenario.
 MAX_TANKS = 1000
 
+#: Liquid fraction at which a tank counts as liquid-full [-]: a vapour space of
+#: a ten-thousandth of the tank (0.1 m3 in 1000 m3) cushions nothing. The run
+#: stops there (event ``liquid-full``); a fill at or above it is refused.
+LIQUID_FULL_FILL = 1.0 - 1e-4
+#: Liquid fraction below which the heel counts as exhausted [-]: the tank
+#: models need liquid to stay saturated. The run stops there (event
+#: ``heel-exhausted``); a fill at or below it is refused.
+HEEL_EMPTY_FILL = 1e-4
+
+
+def _usable_fill(check, path: str, fill_pct: float | None) -> float | None:
+    """Refuse a fill at the liquid-full or heel-exhausted line; return it otherwise."""
+    if fill_pct is None:
+        return None
+    full, empty = 100.0 * LIQUID_FULL_FILL, 100.0 * HEEL_EMPTY_FILL
+    if fill_pct >= full:
+        why = (f"a tank this full is liquid-full (vapour space under "
+               f"{100.0 - full:.2g} % of its volume)")
+    elif fill_pct <= empty:
+        why = f"a tank this empty has no heel left (liquid under {empty:.2g} % of its volume)"
+    else:
+        return fill_pct
+    check.add(f"{path} = {_num(fill_pct)}: {why}; must be above {empty:.2g} and below "
+              f"{_num(full)} (percent of tank volume)")
+    return None
+
 
 @dataclass(frozen=True)
 class KeySpec:
@@ -1075,7 +1101,7 @@ def _parse_tank(check: _Checker, data: dict, table: SaturationTable | None):
         check.add(f"tank.count = {_show(count)}: must be {spec['count'].range_text()}, "
                   f"at most {MAX_TANKS}")
         count = None
-    fill = check.number(tank, "tank", spec["fill_pct"])
+    fill = _usable_fill(check, "tank.fill_pct", check.number(tank, "tank", spec["fill_pct"]))
     pressure = check.number(tank, "tank", spec["pressure_barg"])
     relief = check.number(tank, "tank", spec["relief_set_barg"])
     vacuum = check.number(tank, "tank", spec["vacuum_barg"])
@@ -1213,6 +1239,7 @@ def _parse_legs(check: _Checker, data: dict) -> list[Leg | None] | None:
             continue
         check.unknown_keys(item, prefix, "leg")
         v = {key: check.value(item, prefix, s) for key, s in spec.items()}
+        v["start_fill_pct"] = _usable_fill(check, f"{prefix}.start_fill_pct", v["start_fill_pct"])
         if any(v[k] is None for k in ("days", "air_c", "sea_c", "fuel_kg_h")) or any(
                 k in item and v[k] is None for k in ("name", "start_fill_pct")):
             legs.append(None)

@@ -44,7 +44,7 @@ from .mixture import EquilibriumError
 from .models import MODELS
 from .models.mixture_equilibrium import MixtureStateError
 from .results import ACCUMULATORS, SINK_KEYS, Event, build_result
-from .scenario import Scenario, cargo_table
+from .scenario import HEEL_EMPTY_FILL, LIQUID_FULL_FILL, Scenario, cargo_table
 
 #: Largest integration step [s]; keeps every switch and hazard resolvable.
 MAX_STEP = 12 * 3600.0
@@ -59,9 +59,8 @@ REBUILD_TOLERANCE = 3e-3
 #: pressure when it is off it [s]. Long against the integrator's largest step
 #: divided by 2.8 (explicit RK stability), so it never limits the step.
 HOLD_RELAXATION = 6 * 3600.0
-#: Liquid fraction below which the heel counts as exhausted [-]: the tank
-#: model needs liquid to stay saturated.
-HEEL_EMPTY_FILL = 1e-4
+_LIQUID_FULL_WORDS = ("tank liquid-full: no vapour space left (hydraulic overpressure hazard); "
+                      "run stopped")
 #: Segment-count guard against a control loop that fails to settle.
 MAX_SEGMENTS = 20_000
 
@@ -425,7 +424,9 @@ class _Voyage:
             fn.direction = direction
             funcs.append((fn, tag))
 
-        make(lambda t, y: self.evaluate(y, leg).fill - 1.0, ("liquid-full",), 1)
+        # not at exactly 100 %: the two-zone model's vapour, squeezed towards zero
+        # volume, would make the integrator crawl there without ever reaching it
+        make(lambda t, y: self.evaluate(y, leg).fill - LIQUID_FULL_FILL, ("liquid-full",), 1)
         make(lambda t, y: self.evaluate(y, leg).fill - HEEL_EMPTY_FILL, ("heel-exhausted",), -1)
         low = table.temperature_min * (1.0 + 1e-9)
         high = table.temperature_max * (1.0 - 1e-9)
@@ -675,12 +676,7 @@ def simulate(scenario: Scenario, progress=None):
                 )
                 status, message, stop = "stopped", "heel exhausted", True
             elif kind == "liquid-full":
-                voyage.note(
-                    t_end,
-                    "liquid-full",
-                    "tank liquid-full: no vapour space left "
-                    "(hydraulic overpressure hazard); run stopped",
-                )
+                voyage.note(t_end, "liquid-full", _LIQUID_FULL_WORDS)
                 status, message, stop = "stopped", "tank became liquid-full", True
             elif kind == "low-limit":
                 if table.temperature_min <= table.temperature_triple * (1 + 1e-6):

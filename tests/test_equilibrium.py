@@ -166,7 +166,12 @@ def test_liquid_full_stops_the_run_with_an_event():
     res = simulate(sc)
     assert res.status == "stopped"
     assert [e.kind for e in res.events][-1] == "liquid-full"
-    assert res.timeseries["fill_pct"].iloc[-1] == pytest.approx(100.0, abs=1e-6)
+    from sim.scenario import LIQUID_FULL_FILL
+
+    # the run stops where the vapour space falls to 0.01 % of the tank
+    assert LIQUID_FULL_FILL == pytest.approx(0.9999)
+    assert res.timeseries["fill_pct"].iloc[-1] == pytest.approx(100.0 * LIQUID_FULL_FILL,
+                                                                abs=1e-6)
     assert np.isfinite(res.timeseries.select_dtypes("number").to_numpy()).all()
     assert any(e.kind == "loading-limit-exceeded" for e in res.events)
 

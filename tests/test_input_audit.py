@@ -340,3 +340,27 @@ def test_limits_are_finite_and_ordered():
     # guards against a limit edited into something that no longer protects
     assert math.isfinite(MAX_NUMBER) and MAX_NUMBER * 1e12 * 1e12 < 1e300
     assert 365.0 <= MAX_VOYAGE_DAYS <= 36500.0 and 1 <= MAX_TANKS <= 10_000
+
+
+@pytest.mark.parametrize("value, words", [
+    (99.99, "liquid-full"),
+    (99.999, "liquid-full"),
+    (0.01, "no heel left"),
+    (1e-6, "no heel left"),
+])
+def test_fill_at_the_liquid_full_or_heel_exhausted_line_is_refused(value, words):
+    """A brim-full or empty tank: the run would stop at once (the two-zone model crawled
+    for minutes instead); the message names the key, the value and the usable range."""
+    data = default_scenario_dict()
+    data["tank"]["fill_pct"] = value
+    problems = problems_of(data)
+    assert any(p.startswith(f"tank.fill_pct = {value:g}") and words in p
+               and "above 0.01 and below 99.99" in p for p in problems), problems
+
+
+def test_port_call_fill_at_the_liquid_full_line_is_refused():
+    data = default_scenario_dict()
+    data["leg"].append(dict(data["leg"][0], start_fill_pct=99.995))
+    problems = problems_of(data)
+    assert any(p.startswith("leg[2].start_fill_pct = 99.995") and "liquid-full" in p
+               for p in problems), problems

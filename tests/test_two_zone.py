@@ -664,3 +664,21 @@ def test_wall_keys_reach_the_two_zone_model():
     tank = dataclasses.replace(sc.tank, wall_thickness=0.012, wall_conductivity=40.0)
     model = _Voyage(dataclasses.replace(sc, tank=tank)).model
     assert model.wall_conductance == pytest.approx(0.012 * 40.0, rel=1e-12)
+
+
+def test_a_brim_full_two_zone_tank_stops_liquid_full_without_crawling():
+    """99 % propane heated hard: the relief valve lifts, the liquid keeps expanding and
+    the tank goes liquid-full (vapour space below 0.01 % of the volume). The squeezed
+    vapour of the two-zone model must not make the integrator crawl towards exactly
+    100 % (it took minutes before the liquid-full line was drawn at 99.99 %)."""
+    from sim.scenario import LIQUID_FULL_FILL
+
+    sc = closed_tank(cargo="propane", fill=0.99, pressure_barg=0.1, relief_barg=17.0,
+                     u_value=2.0, days=30)
+    res = simulate(two_zone(sc))
+    kinds = [e.kind for e in res.events]
+    assert kinds[-1] == "liquid-full" and "relief-lift" in kinds
+    assert res.status == "stopped"
+    assert res.timeseries["fill_pct"].iloc[-1] == pytest.approx(100.0 * LIQUID_FULL_FILL,
+                                                                abs=1e-6)
+    assert res.stats["rhs_calls"] < 10_000
