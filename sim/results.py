@@ -410,9 +410,9 @@ def write_outputs(result: VoyageResult, out_dir: str | os.PathLike) -> list[Path
     try:
         for name, text in payloads.items():
             fd, tmp = tempfile.mkstemp(dir=out, prefix=f".{name}.", suffix=".tmp")
+            temps.append((tmp, out / name))  # before writing: a failed write is removed too
             with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
                 fh.write(text)
-            temps.append((tmp, out / name))
         umask = os.umask(0)
         os.umask(umask)
         for tmp, final in temps:

@@ -653,6 +653,18 @@ def simulate(scenario: Scenario, progress=None):
             status, message = "stopped", f"stopped at {t / 3600:.2f} h: {exc}"
             voyage.note(t, "model-limit", message)
             break
+        except ValueError as exc:
+            if "different signs" not in str(exc):
+                raise
+            # scipy could not bracket an event it had seen change sign: the model's
+            # answer for one state was not unique (a property solve that found another
+            # root), far outside where the model has been tested
+            status = "failed"
+            message = (f"stopped at {t / 3600:.2f} h: the tank model gave two answers for one "
+                       "state (its property solution is not unique here), so the switch of "
+                       "pressure control or hazard could not be located; the cargo is far "
+                       "outside the tested range of the model")
+            break
         if sol.status == -1:
             status, message = "failed", f"integration failed at {t / 3600:.2f} h: {sol.message}"
             break
