@@ -488,8 +488,8 @@ def holding_time(data: dict, *, air_c: float = DESIGN_AIR_C, sea_c: float = DESI
 #: Holding-time curves: key -> axis label.
 CURVES = {
     "fill_pct": "Start fill [% of tank volume]",
-    "air_c": "Air temperature [degC] (sea at design)",
-    "u_w_m2k": "Insulation U-value [W/(m2 K)]",
+    "air_c": "Air temperature [°C] (sea at design)",
+    "u_w_m2k": "Insulation U-value [W/(m² K)]",
     "relief_set_barg": "Relief set pressure [barg]",
 }
 
@@ -1035,7 +1035,7 @@ def sizing_figures(sizing: Sizing) -> list:
             fig.update_yaxes(title_text="holding time [h]", row=i // 2 + 1, col=i % 2 + 1)
         s = sizing.summary
         fig.update_layout(title=f"Holding time, all pressure control lost (design ambient "
-                                f"{s['design_air_c']:g} / {s['design_sea_c']:g} degC)<br><sup>"
+                                f"{s['design_air_c']:g} / {s['design_sea_c']:g} °C)<br><sup>"
                                 "x on the axis: no lift within the horizon, or liquid-full "
                                 "first (hover for which)</sup>",
                           height=720, showlegend=False, meta={"chart": "holding-time"})
@@ -1049,8 +1049,8 @@ def sizing_figures(sizing: Sizing) -> list:
                                    line={"color": "#c2593f"}))
         fig.update_layout(
             title=f"IGC loading limit, relief set {sizing.summary['relief_set_barg']:.3f} barg "
-                  f"(reference {lim['reference_temperature'] - T_ZERO_C:.2f} degC)",
-            xaxis_title="Loading temperature [degC]",
+                  f"(reference {lim['reference_temperature'] - T_ZERO_C:.2f} °C)",
+            xaxis_title="Loading temperature [°C]",
             yaxis_title="Loading limit [% of tank volume]",
             height=420, meta={"chart": "loading-limit"})
         figures.append(fig)
