@@ -1,7 +1,22 @@
-"""Small SI scenarios built directly from the dataclasses (no file parsing)."""
+"""Small SI scenarios built directly from the dataclasses (no file parsing), and the
+helpers several test files share (scenario problems, app metrics and charts)."""
+
+import json
+
+import pytest
 
 from sim.geometry import Prismatic, Sphere
-from sim.scenario import Insulation, Leg, Outage, Oxidiser, Reliquefaction, Scenario, TankSpec
+from sim.scenario import (
+    Insulation,
+    Leg,
+    Outage,
+    Oxidiser,
+    Reliquefaction,
+    Scenario,
+    ScenarioError,
+    TankSpec,
+    parse_scenario,
+)
 from sim.units import SECONDS_PER_DAY, barg_to_pa, c_to_k
 
 
@@ -65,3 +80,32 @@ def controlled_ship(outage=True):
     return Scenario(
         "controlled ship", "equilibrium", "methane", tank, ins, legs, rl, ox, barg_to_pa(0.10)
     )
+
+
+def problems_of(data: dict) -> list[str]:
+    """Every problem the loader reports for a scenario dict (it must report some)."""
+    with pytest.raises(ScenarioError) as info:
+        parse_scenario(data)
+    return info.value.problems
+
+
+def only_problem(data: dict) -> str:
+    problems = problems_of(data)
+    assert len(problems) == 1, problems
+    return problems[0]
+
+
+def metric(at, label: str) -> str:
+    """The value of the app's metric with this label (AppTest)."""
+    for item in at.metric:
+        if item.label == label:
+            return item.value
+    raise AssertionError(f"no metric {label!r}; have {[m.label for m in at.metric]}")
+
+
+def figure(at, key: str) -> dict:
+    """The plotly figure of the app's chart with this key, as a dict (AppTest)."""
+    for element in at.get("plotly_chart"):
+        if getattr(element, "key", None) == key:
+            return json.loads(element.proto.spec)
+    raise AssertionError(f"no chart with key {key!r}")

@@ -9,7 +9,6 @@ digit. Widgets are found by key (the parameter name), never by position.
 from __future__ import annotations
 
 import base64
-import json
 import re
 import tomllib
 from pathlib import Path
@@ -17,6 +16,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from cases import figure, metric
 from streamlit.testing.v1 import AppTest
 
 from sim import CAUTION
@@ -81,20 +81,6 @@ def assert_shown(text: str, engine_value: float) -> None:
     """A displayed number equals the engine's to within half its last digit."""
     tol = 0.5 * 10.0 ** -decimals(text) + 1e-9
     assert shown_number(text) == pytest.approx(engine_value, abs=tol), text
-
-
-def metric(at: AppTest, label: str) -> str:
-    for item in at.metric:
-        if item.label == label:
-            return item.value
-    raise AssertionError(f"no metric {label!r}; have {[m.label for m in at.metric]}")
-
-
-def figure(at: AppTest, key: str) -> dict:
-    for element in at.get("plotly_chart"):
-        if getattr(element, "key", None) == key:
-            return json.loads(element.proto.spec)
-    raise AssertionError(f"no chart with key {key!r}")
 
 
 def array(value) -> np.ndarray:

@@ -14,6 +14,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
+from cases import figure, metric
 from streamlit.testing.v1 import AppTest
 
 from sim import CAUTION
@@ -49,20 +50,6 @@ def engine_problems(data: dict) -> list[str]:
 
 def errors(at: AppTest) -> list[str]:
     return [e.value for e in at.error]
-
-
-def metric(at: AppTest, label: str) -> str:
-    for item in at.metric:
-        if item.label == label:
-            return item.value
-    raise AssertionError(f"no metric {label!r}; have {[m.label for m in at.metric]}")
-
-
-def figure(at: AppTest, key: str) -> dict:
-    for element in at.get("plotly_chart"):
-        if getattr(element, "key", None) == key:
-            return json.loads(element.proto.spec)
-    raise AssertionError(f"no chart with key {key!r}")
 
 
 # ---------------------------------------------------------------------------

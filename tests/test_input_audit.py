@@ -15,6 +15,7 @@ from __future__ import annotations
 import math
 
 import pytest
+from cases import only_problem, problems_of
 
 from sim import sizing, sweep
 from sim.cli import main
@@ -31,18 +32,6 @@ from sim.scenario import (
     scenario_to_toml,
     set_key,
 )
-
-
-def problems_of(data: dict) -> list[str]:
-    with pytest.raises(ScenarioError) as info:
-        parse_scenario(data)
-    return info.value.problems
-
-
-def only_problem(data: dict) -> str:
-    problems = problems_of(data)
-    assert len(problems) == 1, problems
-    return problems[0]
 
 
 def write(tmp_path, data: dict, name: str = "case.toml"):

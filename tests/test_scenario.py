@@ -15,6 +15,7 @@ import tomllib
 from pathlib import Path
 
 import pytest
+from cases import only_problem, problems_of
 
 from sim.cargo import saturation_table
 from sim.scenario import (
@@ -53,18 +54,6 @@ def full_dict() -> dict:
                      "outage": [{"start_day": 1.0, "hours": 2.0}]}
     d["fuel"] = {"floor_barg": 0.05, "outage": [{"start_day": 3.0, "hours": 12.0}]}
     return d
-
-
-def problems_of(data: dict) -> list[str]:
-    with pytest.raises(ScenarioError) as info:
-        parse_scenario(data)
-    return info.value.problems
-
-
-def only_problem(data: dict) -> str:
-    problems = problems_of(data)
-    assert len(problems) == 1, problems
-    return problems[0]
 
 
 def assert_has(text: str, *parts: str) -> None:
