@@ -125,6 +125,12 @@ class MixtureEquilibriumModel:
         x = self.table.reference if liquid is None else np.asarray(liquid, dtype=float)
         x = x / x.sum()
         temp = self.table.bubble_temperature(pressure, x)
+        if np.any(np.diff(self.table.temperatures) > 1.01 * REFRESH_SPACING):
+            # the as-loaded table spans the whole pressure range on coarse nodes; the
+            # run starts on a table as fine as its rebuilds, so the first rebuild does
+            # not step the pressure by the coarse table's interpolation error
+            self.table = self._local_table(self.table.reference, temp)
+            temp = self.table.bubble_temperature(pressure, x)
         v, _ = self.table.raw(temp)
         lnp, lnk, vl, ul, vv, uv = self.table.split(v)
         k = np.exp(lnk)
@@ -374,6 +380,13 @@ class MixtureEquilibriumModel:
         hi = self.table.temperature_max if self.table.temperature_max < self.limits[1] else 1e9
         return max(drift / self.drift_tolerance - 1.0, (t - hi) / 0.5, (lo - t) / 0.5)
 
+    def _local_table(self, liquid, temperature: float) -> MixtureTable:
+        """A table around ``liquid`` from REFRESH_SPAN below to above ``temperature``."""
+        lo = max(temperature - REFRESH_SPAN[0], self.limits[0])
+        hi = min(temperature + REFRESH_SPAN[1], self.limits[1])
+        return MixtureTable(self.components, liquid, node_temperatures(lo, hi, REFRESH_SPACING),
+                            backends=(self.table.backend,))
+
     def refresh(self, y) -> None:
         """Rebuild the table around the current liquid and temperature.
 
@@ -388,12 +401,7 @@ class MixtureEquilibriumModel:
         x = np.maximum(state._extra["x"], 1e-15)
         t = state.liquid_temperature
         drifted = float(np.max(np.abs(state._extra["x"] - self.table.reference)))
-        lo = max(t - REFRESH_SPAN[0], self.limits[0])
-        hi = min(t + REFRESH_SPAN[1], self.limits[1])
-        self.table = MixtureTable(
-            self.components, x, node_temperatures(lo, hi, REFRESH_SPACING),
-            backends=(self.table.backend,),
-        )
+        self.table = self._local_table(x, t)
         self.refreshes += 1
         jump = abs(math.log(self.evaluate(y, 300.0, 300.0).pressure / state.pressure))
         self.largest_jump = max(self.largest_jump, jump)
