@@ -1190,7 +1190,8 @@ def sweep_figure(result: SweepResult):
         if ys and max(ys) - min(ys) <= 1e-6 * max(abs(max(ys)), 1e-9):
             # a held pressure varies by solver noise only: show it flat, not as 0.12000000001
             mid, pad = 0.5 * (max(ys) + min(ys)), max(0.05 * abs(max(ys)), 1e-3)
-            fig.update_yaxes(range=[mid - pad, mid + pad], row=oi // 2 + 1, col=oi % 2 + 1)
+            span = [mid - pad, mid + pad] if mid != 0.0 else [-0.05, 1.0]  # all zero: 0 to 1
+            fig.update_yaxes(range=span, row=oi // 2 + 1, col=oi % 2 + 1)
     # no figure title (the page has one): the legend of the second key goes on top
     fig.update_layout(height=300 * rows + 80, meta={"chart": "sweep", "title": title},
                       showlegend=bool(group_key), margin={"t": 80},
