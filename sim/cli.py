@@ -181,6 +181,8 @@ def cmd_run(args) -> int:
     for e in result.events:
         if e.kind not in ("leg",):
             print(f"  {e.time / 3600:9.2f} h  {e.kind:22s} {e.detail}")
+    for warning in s.get("model_warnings") or ():
+        print(f"  warning: {warning}")
     print("  wrote " + ", ".join(str(p) for p in written))
     print(f"  {CAUTION}")
     return EXIT_FAILED if result.status == "failed" else EXIT_OK

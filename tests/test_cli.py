@@ -69,6 +69,10 @@ def test_every_demo_runs_through_the_cli(name, tmp_path, capsys):
     assert lost == pytest.approx(summary["fuel_t"] + summary["oxidised_t"] + summary["vented_t"],
                                  rel=1e-6, abs=1e-6)
     assert summary["status"] in ("completed", "stopped")
+    # the model's warnings (correlations out of range, property fall-backs) reach the
+    # console as well as summary.json
+    for warning in summary["model_warnings"]:
+        assert f"warning: {warning}" in out
 
 
 def test_bad_scenario_exit_code_and_message(tmp_path, capsys):
