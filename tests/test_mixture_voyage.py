@@ -137,6 +137,28 @@ def test_tank_state_matches_heos_closed_tank_after_weathering():
     assert st.pressure == pytest.approx(ref.pressure, rel=3e-3)
     assert st.fill == pytest.approx(ref.fill, abs=1e-4)
     assert st.vapour_fractions[-1] == pytest.approx(ref.vapour.mole_fractions[-1], abs=2e-3)
+    # every rebuild moved the pressure by less than the warning line (HEOS, typical LNG)
+    import sim.models.mixture_equilibrium as me
+
+    assert 0.0 < model.largest_jump < me.JUMP_WARNING
+    assert not any("inaccurate" in w for w in model.warnings)
+
+
+def test_a_rebuild_that_moves_the_pressure_a_lot_is_reported(monkeypatch):
+    """Take 30 % of the nitrogen out of the liquid and rebuild: the jump is measured and,
+    above the warning line (set to 0 here), reported with its size."""
+    import sim.models.mixture_equilibrium as me
+
+    monkeypatch.setattr(me, "JUMP_WARNING", 0.0)
+    table, _ = loaded_mixture_tables(TYPICAL)
+    model = MixtureEquilibriumModel(table, 1000.0, 0.0, 0.0,
+                                    limits=(table.temperature_min, table.temperature_max))
+    y = model.initial_state(0.95, 1.10e5)
+    y[NAMES.index("nitrogen")] *= 0.7
+    model.refresh(y)
+    assert model.largest_jump > 0.0
+    size = f"{100.0 * model.largest_jump:.1f} %"
+    assert any("inaccurate" in w and size in w for w in model.warnings), model.warnings
 
 
 def test_pressure_rate_coefficients_match_finite_differences():
