@@ -273,9 +273,13 @@ def _inputs() -> dict:
             },
         )
         state.table_edited(state.LEG_EDITOR, edited)
-        days = edited["days"].fillna(0.0).sum() if len(edited) else 0.0
-        st.caption(f"Voyage length: {days:g} days in {len(edited)} leg"
-                   f"{'s' if len(edited) != 1 else ''}.")
+        lengths = edited["days"] if len(edited) else []
+        if len(lengths) and all(d is not None and d == d and d > 0 for d in lengths):
+            st.caption(f"Voyage length: {sum(lengths):g} days in {len(edited)} leg"
+                       f"{'s' if len(edited) != 1 else ''}.")
+        else:  # a leg without a length (or a bad one, reported below) has no total
+            st.caption(f"{len(edited)} leg{'s' if len(edited) != 1 else ''}; the voyage length "
+                       "shows once every leg has its days.")
         slots["leg"] = st.empty()
 
     with _group("Pressure control", "Vapour is taken off in order of set pressure: engines "
