@@ -257,6 +257,9 @@ MAX_VOYAGE_DAYS = 3650.0
 #: Most identical tanks in one scenario.
 MAX_TANKS = 1000
 
+#: Longest title, label or leg name [characters]: it heads charts and tables.
+MAX_TEXT = 200
+
 #: Liquid fraction at which a tank counts as liquid-full [-]: a vapour space of
 #: a ten-thousandth of the tank (0.1 m3 in 1000 m3) cushions nothing. The run
 #: stops there (event ``liquid-full``); a fill at or above it is refused.
@@ -770,6 +773,14 @@ class _Checker:
             return None
         if not value.strip():
             self.add(f"{path} = {_show(value)}: must not be empty")
+            return None
+        if any(ord(c) < 32 or ord(c) == 127 for c in value):
+            self.add(f"{path} = {value!r}: must be one line of text, without line breaks, tabs "
+                     "or other control characters")
+            return None
+        if len(value) > MAX_TEXT:
+            self.add(f"{path} = {_show(value[:40])}...: {len(value)} characters; at most "
+                     f"{MAX_TEXT}")
             return None
         return value
 

@@ -353,3 +353,18 @@ def test_port_call_fill_at_the_liquid_full_line_is_refused():
     problems = problems_of(data)
     assert any(p.startswith("leg[2].start_fill_pct = 99.995") and "liquid-full" in p
                for p in problems), problems
+
+
+@pytest.mark.parametrize("value, words", [
+    ("two\nlines", "one line of text"),
+    ("tab\there", "one line of text"),
+    ("nul\x00", "one line of text"),
+    ("x" * 201, "201 characters; at most 200"),
+])
+def test_title_must_be_one_short_line(value, words):
+    """A title heads charts, tables and the console: no line breaks or control
+    characters (they were printed as they came), and not a page long."""
+    data = default_scenario_dict()
+    data["title"] = value
+    problem = only_problem(data)
+    assert problem.startswith("title = ") and words in problem, problem
