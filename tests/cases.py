@@ -109,3 +109,12 @@ def figure(at, key: str) -> dict:
         if getattr(element, "key", None) == key:
             return json.loads(element.proto.spec)
     raise AssertionError(f"no chart with key {key!r}")
+
+
+def run_whatif(at, which: str, day: float, hours: float | None = None) -> None:
+    """On the app's What-if page: make ``which`` fail on ``day`` and run both voyages."""
+    at.switch_page("ui/pages/whatif.py").run()
+    at.radio(key="whatif.which").set_value(which)
+    at.number_input(key="whatif.start_day").set_value(day)
+    at.number_input(key="whatif.hours").set_value(hours)
+    at.button(key="whatif.run").click().run()

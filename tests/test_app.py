@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from cases import figure, metric
+from cases import figure, metric, run_whatif
 from streamlit.testing.v1 import AppTest
 
 from sim import CAUTION
@@ -218,12 +218,8 @@ def test_blank_start_loads_the_engines_default():
 def test_whatif_overlays_both_runs_with_both_relief_times():
     stem = pick_demo(lambda d: "reliquefaction" in d)
     at = start(stem)
-    at.switch_page("ui/pages/whatif.py").run()
     day = 2.0
-    at.radio(key="whatif.which").set_value("reliquefaction")
-    at.number_input(key="whatif.start_day").set_value(day)
-    at.number_input(key="whatif.hours").set_value(None)
-    at.button(key="whatif.run").click().run()
+    run_whatif(at, "reliquefaction", day)
     assert not at.exception, at.exception
 
     data = demo_data(stem)

@@ -14,7 +14,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from cases import figure, metric
+from cases import figure, metric, run_whatif
 from streamlit.testing.v1 import AppTest
 
 from sim import CAUTION
@@ -123,12 +123,8 @@ def test_tank_model_difference_says_how_much_earlier_when_only_one_model_lifts()
 
 def test_whatif_without_a_lift_counts_hours_from_the_failure_and_shades_it():
     at = start(AMMONIA)
-    at.switch_page("ui/pages/whatif.py").run()
     day = 4.0
-    at.radio(key="whatif.which").set_value("reliquefaction")
-    at.number_input(key="whatif.start_day").set_value(day)
-    at.number_input(key="whatif.hours").set_value(None)
-    at.button(key="whatif.run").click().run()
+    run_whatif(at, "reliquefaction", day)
     assert not at.exception, at.exception
 
     failed = simulate(parse_scenario(fail_control(demo_data(AMMONIA), day, "reliquefaction")))
