@@ -464,30 +464,3 @@ def overlay_figures(runs: Sequence[tuple[str, VoyageResult]],
         "cargo_loss_t": cargo_loss_figure(runs),
     }
 
-
-#: Unit spellings of the engine's plain-text figures -> the app's (°C, m²).
-UNIT_WORDS = (("degC", "°C"), ("(m2 K)", "(m² K)"), ("m2K", "m²K"))
-
-
-def _units(text):
-    if not isinstance(text, str):
-        return text
-    for old, new in UNIT_WORDS:
-        text = text.replace(old, new)
-    return text
-
-
-def trade_units(fig: go.Figure) -> go.Figure:
-    """The engine's figures (sizing, sweeps) with units spelled as on the rest of the app."""
-    if fig.layout.title.text:
-        fig.layout.title.text = _units(fig.layout.title.text)
-    for axis in (*fig.select_xaxes(), *fig.select_yaxes()):
-        if axis.title.text:
-            axis.title.text = _units(axis.title.text)
-    for note in fig.layout.annotations or ():
-        note.text = _units(note.text)
-    for trace in fig.data:
-        for attr in ("name", "hovertemplate"):
-            if getattr(trace, attr, None):
-                setattr(trace, attr, _units(getattr(trace, attr)))
-    return fig

@@ -12,7 +12,7 @@ import streamlit as st
 
 from sim import sizing
 from sim.scenario import ScenarioError
-from ui import charts, exports, form, runner, state, widgets
+from ui import exports, form, runner, state, widgets
 
 RESULT = "sizing.result"
 #: Options of ``python -m sim size`` named in the engine's messages -> this page's labels.
@@ -152,7 +152,7 @@ def _show(result: sizing.Sizing) -> None:
                    f"{s['design_air_c']:g} / {s['design_sea_c']:g} °C "
                    f"({s['design_ambient_source']}).")
     for i, fig in enumerate(sizing.sizing_figures(result)):
-        widgets.plot(charts.trade_units(fig), f"sizing.chart.{i}")
+        widgets.plot(fig, f"sizing.chart.{i}")
     files = sizing.output_files(result)
     stem = exports.file_stem(s["title"])
     cols = st.columns(len(files))

@@ -13,7 +13,7 @@ from __future__ import annotations
 import streamlit as st
 
 from sim import sweep
-from ui import charts, exports, runner, state, widgets
+from ui import exports, runner, state, widgets
 
 RESULT = "sweep.result"
 #: Largest sweep the app runs (serially, in the server process).
@@ -151,7 +151,7 @@ def _show(result: sweep.SweepResult) -> None:
         if empty:
             st.caption(f":material/bar_chart_off: {empty}")
             continue
-        widgets.plot(_stagger_percentiles(charts.trade_units(fig)), f"sweep.chart.{i}")
+        widgets.plot(_stagger_percentiles(fig), f"sweep.chart.{i}")
     st.dataframe(result.frame(), key="sweep.table", width="stretch", hide_index=True,
                  placeholder="—")
     st.caption("One row per case, columns as in sweep.csv; time_to_relief_h reads — where the "
