@@ -59,8 +59,6 @@ REBUILD_TOLERANCE = 3e-3
 #: pressure when it is off it [s]. Long against the integrator's largest step
 #: divided by 2.8 (explicit RK stability), so it never limits the step.
 HOLD_RELAXATION = 6 * 3600.0
-_LIQUID_FULL_WORDS = ("tank liquid-full: no vapour space left (hydraulic overpressure hazard); "
-                      "run stopped")
 #: Segment-count guard against a control loop that fails to settle.
 MAX_SEGMENTS = 20_000
 
@@ -688,7 +686,8 @@ def simulate(scenario: Scenario, progress=None):
                 )
                 status, message, stop = "stopped", "heel exhausted", True
             elif kind == "liquid-full":
-                voyage.note(t_end, "liquid-full", _LIQUID_FULL_WORDS)
+                voyage.note(t_end, "liquid-full", "tank liquid-full: no vapour space left "
+                            "(hydraulic overpressure hazard); run stopped")
                 status, message, stop = "stopped", "tank became liquid-full", True
             elif kind == "low-limit":
                 if table.temperature_min <= table.temperature_triple * (1 + 1e-6):
