@@ -548,7 +548,7 @@ VAN_DRESAR_2W = {
 }
 
 
-def lh2_scenario(model, fill, start_pressure, stop_pressure, flux=2.0):
+def lh2_scenario(model, fill, start_pressure, stop_pressure, flux=2.0, **wall):
     """Sphere of the test tank's volume, parahydrogen, uniform heat flux.
 
     The U-value puts ``flux`` x 13.98 m^2 into the tank with the cargo at
@@ -558,17 +558,17 @@ def lh2_scenario(model, fill, start_pressure, stop_pressure, flux=2.0):
     """
     shape = Sphere((6 * LH2_VOLUME / math.pi) ** (1 / 3))
     u_value = flux * LH2_AREA / (shape.surface_area() * (300.0 - 21.5))
-    tank = TankSpec(shape, 1, fill, start_pressure, stop_pressure, 1000.0)
+    tank = TankSpec(shape, 1, fill, start_pressure, stop_pressure, 1000.0, **wall)
     legs = (Leg("test", 10 * SECONDS_PER_DAY, 300.0, 300.0, 0.0),)
     return Scenario("K-site LH2", model, "parahydrogen", tank, Insulation(u_value, 1.0), legs,
                     None, None, start_pressure)
 
 
-def lh2_rate(model, fill, window, start_pressure):
+def lh2_rate(model, fill, window, start_pressure, **wall):
     """Mean pressure-rise rate over a pressure window [kPa/h]."""
     low, high = window
     hours = [0.0 if p <= start_pressure else
-             simulate(lh2_scenario(model, fill, start_pressure, p)).time_to_relief_h
+             simulate(lh2_scenario(model, fill, start_pressure, p, **wall)).time_to_relief_h
              for p in (low, high)]
     return (high - low) / 1e3 / (hours[1] - hours[0])
 
@@ -612,25 +612,21 @@ LH2_WALL = dict(wall_thickness=0.002, wall_conductivity=20.0)
 
 @pytest.fixture(scope="module")
 def lh2_rates_wall():
-    """Two-zone rates as :func:`lh2_rates`, with conduction along the nominal wall.
-
-    The orchestrator builds the model from the scenario's tank; until it
-    passes ``TankSpec.wall_thickness`` / ``wall_conductivity`` on, the model
-    class is swapped for one carrying the wall for these runs.
-    """
-    import functools
-
-    import sim.voyage
-
-    with pytest.MonkeyPatch.context() as patch:
-        patch.setitem(sim.voyage.MODELS, "two-zone", functools.partial(TwoZoneModel, **LH2_WALL))
-        return {fill: lh2_rate("two-zone", fill, window, ATM)
-                for fill, (window, _, _) in VAN_DRESAR_2W.items()}
+    """Two-zone rates as :func:`lh2_rates`, with conduction along the nominal wall
+    (given on the tank, as the scenario keys ``wall_thickness_mm`` and
+    ``wall_conductivity_w_mk`` do)."""
+    rates = {fill: lh2_rate("two-zone", fill, window, ATM, **LH2_WALL)
+             for fill, (window, _, _) in VAN_DRESAR_2W.items()}
+    return rates
 
 
 @pytest.mark.parametrize("fill", sorted(VAN_DRESAR_2W))
-def test_van_dresar_two_zone_with_wall_within_25_percent_of_measured(lh2_rates_wall, fill):
+def test_van_dresar_two_zone_with_wall_within_25_percent_of_measured(lh2_rates_wall, lh2_rates,
+                                                                     fill):
     _, measured, homogeneous = VAN_DRESAR_2W[fill]
+    # the wall is really in these runs: it carries dry-wall heat into the layer
+    # and heat down the layer, so every rate falls (an earlier fixture lost it)
+    assert lh2_rates_wall[fill] < 0.97 * lh2_rates[fill]
     # at the nominal wall (29 % is 22 % low there and leaves the 25 % band at
     # k t above about 0.08 W/K: docs/two-zone.md, "Conduction along the tank wall")
     assert lh2_rates_wall[fill] == pytest.approx(measured, rel=0.25)
