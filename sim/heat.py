@@ -52,6 +52,7 @@ def u_value_from_rated_bor(
     air_temperature: float,
     sea_temperature: float,
     air_fraction: float,
+    vented_per_joule: float | None = None,
 ) -> float:
     """U-value that reproduces a rated boil-off rate.
 
@@ -72,6 +73,10 @@ def u_value_from_rated_bor(
         Rated ambient [K].
     air_fraction : float
         Share of the surface that follows the air temperature [-].
+    vented_per_joule : float, optional
+        Boil-off vented per joule of heat at constant pressure [kg/J]; by
+        default the pure-cargo value :math:`(1 - \\rho_v/\\rho_l)/h_{fg}`
+        (a mixture passes its own, see :func:`sim.facts.vented_kg_per_joule`).
 
     Returns
     -------
@@ -93,7 +98,9 @@ def u_value_from_rated_bor(
     """
     sat = table.at(table.temperature(pressure))
     liquid_mass = fill * volume * sat.rho_liquid
-    heat = rated_bor * liquid_mass * sat.latent_heat / (1.0 - sat.rho_vapour / sat.rho_liquid)
+    if vented_per_joule is None:
+        vented_per_joule = (1.0 - sat.rho_vapour / sat.rho_liquid) / sat.latent_heat
+    heat = rated_bor * liquid_mass / vented_per_joule
     delta_t = air_fraction * (air_temperature - sat.temperature) + (1.0 - air_fraction) * (
         sea_temperature - sat.temperature
     )

@@ -40,6 +40,7 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from . import heat as heat_mod
+from .facts import calibrated_u_value
 from .mixture import EquilibriumError
 from .models import MODELS
 from .models.mixture_equilibrium import MixtureStateError
@@ -106,20 +107,7 @@ class _Voyage:
         self.volume = self.shape.volume()
         area = self.shape.surface_area()
         ins = scenario.insulation
-        if ins.u_value is not None:
-            u_value = ins.u_value
-        else:
-            u_value = heat_mod.u_value_from_rated_bor(
-                ins.rated_bor,
-                self.table,
-                self.volume,
-                area,
-                ins.rated_fill if ins.rated_fill is not None else tank.fill,
-                tank.pressure,
-                ins.rated_air_temperature,
-                ins.rated_sea_temperature,
-                ins.air_exposed_fraction,
-            )
+        u_value = calibrated_u_value(scenario, self.table)
         self.u_value = u_value
         self.area = area
         ua_air, ua_sea = heat_mod.conductances(u_value, area, ins.air_exposed_fraction)
