@@ -163,7 +163,8 @@ class MixtureTable:
         errors = []
         for backend in backends:
             try:
-                rows = [self._row(backend, float(t)) for t in temps]
+                # top first: a backend that fails, fails near the critical region
+                rows = [self._row(backend, float(t)) for t in temps[::-1]][::-1]
             except (EquilibriumError, ValueError) as exc:
                 errors.append(f"{backend}: {exc}")
                 continue
@@ -354,6 +355,10 @@ def node_temperatures(t_low: float, t_high: float, spacing: float = 2.0, minimum
 BUBBLE_TABLE_PRESSURES = (20e3, 3.0e6)
 #: Spline nodes of the as-loaded table.
 BUBBLE_TABLE_NODES = 28
+#: Where a backend has no bubble point at the top of the range (near the
+#: mixture's critical region), the range's span is cut to this share, at most
+#: this many times, before the next backend is tried.
+BUBBLE_TABLE_SHRINK, BUBBLE_TABLE_SHRINKS = 0.85, 8
 
 
 @functools.lru_cache(maxsize=32)
@@ -385,15 +390,23 @@ def loaded_mixture_tables(fractions: tuple[tuple[str, float], ...]):
     # the mixture has no bubble point (near its critical region).
     t_lo = wilson_bubble_temperature(comps, x0, p_lo)
     t_hi = wilson_bubble_temperature(comps, x0, p_hi)
+    # HEOS over a shorter range before Peng-Robinson over the whole: HEOS often
+    # fails only near the mixture's critical region, where no cargo is carried,
+    # and a cubic equation's liquid density is several per cent high
     table, errors = None, []
-    for _ in range(5):
-        temps = np.linspace(t_lo, t_hi, BUBBLE_TABLE_NODES)
-        try:
-            table = MixtureTable(comps, x0, temps)
+    others = tuple(b for b in DEFAULT_BACKENDS if b != "HEOS")
+    for backends in (("HEOS",), others):
+        top = t_hi
+        for _ in range(BUBBLE_TABLE_SHRINKS):
+            temps = np.linspace(t_lo, top, BUBBLE_TABLE_NODES)
+            try:
+                table = MixtureTable(comps, x0, temps, backends)
+                break
+            except EquilibriumError as exc:
+                errors.append(str(exc))
+                top = t_lo + BUBBLE_TABLE_SHRINK * (top - t_lo)
+        if table is not None:
             break
-        except EquilibriumError as exc:
-            errors.append(str(exc))
-            t_hi = t_lo + 0.75 * (t_hi - t_lo)
     if table is None:
         raise EquilibriumError("could not tabulate the mixture's bubble curve: " + errors[-1])
     rows = []

@@ -462,3 +462,21 @@ fuel_kg_h = 100000.0"""
     first = res.timeseries.iloc[0]
     bor = first["boil_off_kg_h"] * 24.0 / (first["liquid_t"] * 1000.0)
     assert bor == pytest.approx(0.10 / 100.0, rel=1e-4)
+
+
+def test_a_blend_heos_cannot_tabulate_near_its_critical_region_keeps_heos():
+    """A propane-rich blend whose HEOS bubble point fails only near 30 bar (close to
+    its critical region) used to fall back to Peng-Robinson for the whole table:
+    liquid density 7 % high. HEOS over a shorter range is kept instead."""
+    from sim.mixture import Mixture, bubble_point_temperature
+
+    blend = {"propane": 0.96, "ethane": 0.015, "isobutane": 0.015, "n-butane": 0.01}
+    table, sat = loaded_mixture_tables(tuple(blend.items()))
+    assert table.backend == "HEOS"
+    # the table still reaches pressurised carriage (type C tanks, up to ~17 barg)
+    assert sat.at(table.temperature_max).pressure > 18e5
+    pressure = 1.1e5
+    # reference: CoolProp HEOS bubble point of the blend, directly
+    direct = bubble_point_temperature(Mixture.from_fractions(blend), pressure, backends=("HEOS",))
+    assert sat.at(sat.temperature(pressure)).rho_liquid == pytest.approx(direct.liquid.density,
+                                                                         rel=1e-4)
