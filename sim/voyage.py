@@ -453,7 +453,8 @@ class _Voyage:
     def describe(self, mode: Mode) -> str:
         """Plain words for what is controlling the pressure."""
         if mode.holding is not None:
-            return f"{self.sinks[mode.holding].key} holding"
+            key = self.sinks[mode.holding].key
+            return "relief venting" if key == "relief" else f"{key} holding"
         if any(self.sinks[k].key == "relief" for k in mode.active):
             return "relief venting"
         if not mode.active:
@@ -499,7 +500,8 @@ class _Voyage:
                 self.note(
                     t,
                     "at-capacity",
-                    f"{sink.label} starts at {p_txt} at full capacity; pressure still rising",
+                    f"{sink.label} starts at {p_txt} at full capacity (pressure above its "
+                    "set point)",
                 )
             elif t > 0.0:
                 self.note(t, "stopped-drawing", f"{sink.label} stops drawing at {p_txt}")

@@ -199,7 +199,7 @@ def test_uploaded_file_is_checked_before_it_replaces_the_set_up():
     assert at.text_input(key="title").value == demo_data(stem)["title"]  # unchanged
 
     good = demo_data(other)
-    at.file_uploader(key="upload").set_value(
+    at.file_uploader(key="upload-1").set_value(  # a fresh, empty uploader for each file
         ("good.toml", scenario_to_toml(good).encode(), "application/toml")).run()
     assert not at.exception
     assert at.text_input(key="title").value == good["title"]

@@ -234,6 +234,7 @@ def test_heel_exhausted_stops_the_run_with_a_warning():
     assert res.status == "stopped"
     last = res.events[-1]
     assert last.kind == "heel-exhausted" and "heel exhausted on day" in last.detail
+    assert "relief venting" in set(res.timeseries["control"])  # the words README gives
     assert np.isfinite(res.timeseries.select_dtypes("number").to_numpy()).all()
 
 

@@ -86,9 +86,11 @@ loaded and on arrival.
 
 Energy figures (loaded, lost, delivered; calorific values and Wobbe index)
 use the ISO 6976 method at one set of reference conditions: __REFERENCE__.
-Components without an ISO 6976 value (ethylene, propylene, and pure cargoes
-such as ammonia or hydrogen) have no energy figures; the value of cargo lost
-then uses the price per tonne.
+Cargoes without an ISO 6976 value (ethylene, propylene, 1-butene,
+parahydrogen) and carbon dioxide, which does not burn, have no energy figures;
+the value of cargo lost then uses the price per tonne. Ammonia and normal
+hydrogen do carry energy figures (values recalled from the standard's 1995
+edition; see the source).
 
 A mixture runs with the equilibrium model only. A mixture of one component
 is exactly the pure cargo, which follows the single-component path:

@@ -30,10 +30,22 @@ def _load_demo() -> None:
     _load_text(path.read_text(encoding="utf-8"), f"demo '{stem}'")
 
 
-def _load_upload() -> None:
-    upload = st.session_state.get("upload")
+#: Session key counting the files read; each read gives the uploader a new key,
+#: so it is empty for the next file (a single-file uploader that still held the
+#: last file reported the next one as a removal, and every second file was lost).
+UPLOADS_READ = "upload.count"
+
+
+def _upload_key() -> str:
+    count = st.session_state.get(UPLOADS_READ, 0)
+    return "upload" if not count else f"upload-{count}"
+
+
+def _load_upload(key: str) -> None:
+    upload = st.session_state.get(key)
     if upload is None:
         return
+    st.session_state[UPLOADS_READ] = st.session_state.get(UPLOADS_READ, 0) + 1
     try:
         text = upload.getvalue().decode("utf-8")
     except UnicodeDecodeError as exc:
@@ -79,8 +91,9 @@ def _start_row() -> None:
                            help="Invented ships and voyages that show what the tool does.")
             go.button("Load", key="load_demo", on_click=_load_demo, disabled=not demos,
                       width="stretch")
-        c_file.file_uploader("…or open a scenario file (.toml)", type=["toml"], key="upload",
-                             on_change=_load_upload,
+        key = _upload_key()
+        c_file.file_uploader("…or open a scenario file (.toml)", type=["toml"], key=key,
+                             on_change=_load_upload, args=(key,),
                              help="A file saved from this app or written by hand; see "
                                   "docs/scenario-format.md.")
         c_blank.button("Blank start", key="blank", on_click=_blank, width="stretch",
