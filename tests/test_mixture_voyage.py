@@ -178,6 +178,27 @@ def test_pressure_rate_coefficients_match_finite_differences():
         assert rate == pytest.approx(expected, rel=1e-5, abs=1e-9)
 
 
+def test_a_state_whose_pressure_falls_under_heat_is_refused():
+    """Heat into a closed rigid two-phase tank raises its pressure (a0 > 0). A solved
+    state that says otherwise has left what the tables describe (a year-long vented
+    LNG heel that had lost most of its methane went to vacuum while heat flowed in):
+    refuse it. The state here is mangled on purpose (Jacobian sign flipped)."""
+    from sim.models.mixture_equilibrium import MixtureStateError
+
+    table, _ = loaded_mixture_tables(TYPICAL)
+    model = MixtureEquilibriumModel(table, 500.0, 30.0, 10.0)
+    y0 = model.initial_state(0.9, 1.2e5)
+    st = model.evaluate(y0, 300.0, 290.0)
+    assert st.heat_in > 0.0 and model.pressure_rate_coefficients(st)[0] > 0.0
+    bad = model.evaluate(y0, 300.0, 290.0)
+    bad._extra["jac"] = -bad._extra["jac"]
+    with pytest.raises(MixtureStateError, match="no longer physical"):
+        model.pressure_rate_coefficients(bad)
+    # cooling (ambient below the cargo) lowers the pressure: nothing refused
+    cold = model.evaluate(y0, 50.0, 50.0)
+    assert cold.heat_in < 0.0 and model.pressure_rate_coefficients(cold)[0] < 0.0
+
+
 # -- whole voyages ------------------------------------------------------------------------
 def test_single_component_mixture_path_equals_pure_path():
     """One-component 'mixture' through the mixture model vs the pure equilibrium model

@@ -351,6 +351,14 @@ class MixtureEquilibriumModel:
             d_res(np.zeros(self.size), -(h_v - h_ret) / m_y),
         ])
         dq = -np.linalg.solve(ex["jac"], rhs)[2] * ex["p"]
+        if state.heat_in > 0.0 and dq[0] <= 0.0:
+            # heat into a closed rigid two-phase tank raises its pressure; a state
+            # whose pressure would fall has left the region the tables describe
+            # (seen when a long-vented LNG heel has lost most of its methane)
+            raise MixtureStateError(
+                "the mixture state is no longer physical in the model (heat in would "
+                "lower the pressure): the liquid has weathered beyond what its property "
+                "tables describe; results up to here stand")
         ex["coefficients"] = (float(dq[0]), -float(dq[1]), -float(dq[2]))
         return ex["coefficients"]
 
