@@ -100,7 +100,8 @@ def cmd_validate(args) -> int:
     print(f"{args.scenario}: valid - {scenario.title}")
     print(
         f"  cargo {scenario.cargo}, {scenario.tank.count} x {facts['tank_volume_m3']:.0f} m3 "
-        f"{scenario.raw['tank']['shape']}, {len(scenario.legs)} legs, "
+        f"{scenario.raw['tank']['shape']}, {len(scenario.legs)} "
+        f"leg{'s' if len(scenario.legs) != 1 else ''}, "
         f"{scenario.duration / 86400:.1f} days, model {scenario.model}"
     )
     print(

@@ -903,6 +903,30 @@ def assemble(title: str, cases: Sequence[tuple], outcomes: Sequence[dict]) -> tu
     return rows, keys + numeric + list(TAIL_COLUMNS)
 
 
+#: Keys at which a rated boil-off is calibrated when ``rated_fill_pct`` is not given.
+RATING_FOLLOWS = ("tank.fill_pct", "tank.pressure_barg")
+
+
+def rating_notes(data: dict, keys: Sequence[str]) -> list[str]:
+    """Warn when varied keys also move a U-value calibrated from a rated boil-off.
+
+    A rated boil-off is calibrated at the case's own initial pressure, and at its
+    own fill unless ``insulation.rated_fill_pct`` is given: varying those keys
+    then varies the insulation as well.
+    """
+    ins = data.get("insulation") if isinstance(data.get("insulation"), dict) else {}
+    if "rated_bor_pct_day" not in ins or "u_w_m2k" in ins:
+        return []
+    moving = [k for k in keys if k in RATING_FOLLOWS
+              and not (k == "tank.fill_pct" and "rated_fill_pct" in ins)]
+    if not moving:
+        return []
+    return [f"the U-value is calibrated from insulation.rated_bor_pct_day for each case, and "
+            f"{', '.join(dict.fromkeys(moving))} moves that calibration: the insulation "
+            "changes from case to case (give insulation.rated_fill_pct, or u_w_m2k, to keep "
+            "it fixed while the fill varies)"]
+
+
 def run_sweep(data: dict, variations: Sequence[Variation], workers: int | None = None,
               scheduler: Any = None, progress: Callable[[int], None] | None = None) -> SweepResult:
     """Full-factorial sweep of a scenario dict.
@@ -924,6 +948,7 @@ def run_sweep(data: dict, variations: Sequence[Variation], workers: int | None =
     if not cases:
         raise SweepError("nothing to vary: give at least one --vary KEY=VALUES")
     outcomes, info = run_cases(data, cases, workers, scheduler, progress)
+    info.warnings.extend(rating_notes(data, [v.key for v in variations]))
     rows, columns = assemble(str(data.get("title", "")), cases, outcomes)
     return SweepResult(str(data.get("title", "")), [v.key for v in variations], cases, rows,
                        columns, variations=list(variations), info=info)
@@ -956,6 +981,7 @@ def run_uncertainty(data: dict, distributions: Sequence[Distribution], n: int,
         seed = int(np.random.SeedSequence().entropy % (2**63))
     cases = sample_cases(distributions, n, seed)
     outcomes, info = run_cases(data, cases, workers, scheduler, progress)
+    info.warnings.extend(rating_notes(data, [d.key for d in distributions]))
     rows, columns = assemble(str(data.get("title", "")), cases, outcomes)
     return SweepResult(str(data.get("title", "")), [d.key for d in distributions], cases, rows,
                        columns, distributions=list(distributions), seed=seed, info=info)

@@ -416,3 +416,23 @@ def test_docstring_examples_run():
 
     outcome = doctest.testmod(sweep)
     assert outcome.attempted >= 6 and outcome.failed == 0
+
+
+def test_sweeping_fill_under_a_rated_boil_off_warns_that_the_insulation_moves():
+    from sim.sweep import rating_notes
+
+    rated = {"insulation": {"rated_bor_pct_day": 0.1}}
+    assert "tank.fill_pct" in rating_notes(rated, ["tank.fill_pct"])[0]
+    assert "tank.pressure_barg" in rating_notes(rated, ["tank.pressure_barg"])[0]
+    # a fixed rated fill or a U-value keeps the insulation: nothing to say
+    fixed = {"insulation": {"rated_bor_pct_day": 0.1, "rated_fill_pct": 97.0}}
+    assert rating_notes(fixed, ["tank.fill_pct"]) == []
+    assert rating_notes({"insulation": {"u_w_m2k": 0.1}}, ["tank.fill_pct"]) == []
+    # varying the rating itself is what the user asked for
+    assert rating_notes(rated, ["insulation.rated_bor_pct_day"]) == []
+
+
+def test_the_rating_note_reaches_the_sweep_result(short_propane):
+    data = dict(short_propane, insulation={"rated_bor_pct_day": 0.3})
+    result = sweep.run_sweep(data, [sweep.parse_vary("tank.fill_pct=80,90", data)], workers=1)
+    assert any("rated_bor_pct_day" in w for w in result.info.warnings)

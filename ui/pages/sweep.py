@@ -124,6 +124,8 @@ def _show(result: sweep.SweepResult) -> None:
     n, bad = len(result.rows), len(result.invalid)
     st.success(f"{n} cases, {bad} invalid, {result.info.seconds:.1f} s.",
                icon=":material/check_circle:")
+    for warning in result.info.warnings:
+        st.warning(warning[:1].upper() + warning[1:], icon=":material/report:")
     if bad:
         first = result.rows[result.invalid[0]]["error"]
         st.warning(f"{bad} cases failed validation and have no results (see the error "
