@@ -69,6 +69,19 @@ class ClusterError(RuntimeError):
     """A Dask cluster was reached but could not run the cases (e.g. ``sim`` missing there)."""
 
 
+def _exception_words(exc: BaseException, limit: int = 300) -> str:
+    """``Type: message`` on one line (whitespace collapsed, cut at ``limit``), with the
+    first chained cause (often the ModuleNotFoundError a worker hit) appended."""
+    def words(e):
+        text = " ".join(str(e).split())
+        return f"{type(e).__name__}: {text[:limit] + ('...' if len(text) > limit else '')}"
+
+    out, cause = words(exc), exc.__cause__ or exc.__context__
+    if cause is not None:
+        out += f" (caused by {words(cause)})"
+    return out.rstrip(".")
+
+
 class SweepError(InputError):
     """Bad sweep input: each problem names the option, key, value and what is allowed."""
 
@@ -822,7 +835,7 @@ def _run_dask(base, numbered, scheduler, tick, results, connect_timeout) -> RunI
                     other.cancel()
                 raise ClusterError(
                     f"the Dask cluster at {info.address} could not run the cases: "
-                    f"{type(exc).__name__}: {str(exc).strip().splitlines()[0]}. The scheduler "
+                    f"{_exception_words(exc)}. The scheduler "
                     "and every worker need the same Python environment as this machine "
                     "(sim and its requirements importable, same version); see "
                     "docs/sizing-and-sweeps.md") from None

@@ -436,3 +436,19 @@ def test_the_rating_note_reaches_the_sweep_result(short_propane):
     data = dict(short_propane, insulation={"rated_bor_pct_day": 0.3})
     result = sweep.run_sweep(data, [sweep.parse_vary("tank.fill_pct=80,90", data)], workers=1)
     assert any("rated_bor_pct_day" in w for w in result.info.warnings)
+
+
+def test_cluster_failures_are_told_whole_with_their_cause():
+    from sim.sweep import _exception_words
+
+    try:
+        try:
+            raise ModuleNotFoundError("No module named 'sim'")
+        except ImportError as inner:
+            raise RuntimeError("Error during deserialization of the task graph. This "
+                               "frequently\noccurs if the environments differ.") from inner
+    except RuntimeError as exc:
+        words = _exception_words(exc)
+    # one line, the whole sentence (it used to stop at "This frequently"), and the cause
+    assert "\n" not in words and "frequently occurs if" in words
+    assert words.endswith("(caused by ModuleNotFoundError: No module named 'sim')")
