@@ -4,12 +4,16 @@ Run with ``streamlit run app.py``. Pages live in ``ui/pages/``; this file only
 sets up the page, the navigation and the caution every page shows.
 """
 
+from pathlib import Path
+
 import streamlit as st
 
 from ui import widgets
 
-st.set_page_config(page_title="Boil-off voyage simulator", page_icon=":material/propane_tank:",
-                   layout="wide")
+# a local icon: a Material icon as page icon is fetched from a font server,
+# which an offline ship's network cannot reach
+st.set_page_config(page_title="Boil-off voyage simulator",
+                   page_icon=str(Path(__file__).parent / "ui" / "icon.png"), layout="wide")
 
 PAGES = [
     st.Page("ui/pages/setup.py", title="Set-up", icon=":material/tune:", default=True),

@@ -177,7 +177,17 @@ def mixture_benchmark(repeats: int = 3) -> dict:
             "max": max(times), "result": result}
 
 
-def main(repeats: int = 7) -> int:
+def main(argv: list[str] | None = None) -> int:
+    import argparse
+
+    parser = argparse.ArgumentParser(prog="python -m sim.bench",
+                                     description=__doc__.split("\n\n")[0])
+    parser.add_argument("--repeats", type=int, default=7,
+                        help="runs of the voyage, the median is reported (default 7)")
+    args = parser.parse_args(argv)
+    if args.repeats < 1:
+        parser.error(f"--repeats {args.repeats}: give 1 or more")
+    repeats = args.repeats
     t0 = time.perf_counter()
     import CoolProp  # noqa: F401
 

@@ -4,7 +4,7 @@ from sim import bench
 
 
 def test_bench_runs_and_agrees_with_direct_coolprop(capsys):
-    assert bench.main(repeats=1) == 0
+    assert bench.main(["--repeats", "1"]) == 0
     out = capsys.readouterr().out
     assert "speed-up of tables" in out
     # the table run and the direct-CoolProp runs solve the same problem: same answer

@@ -352,7 +352,8 @@ def _facts_table(facts: dict, data: dict) -> str:
     rows = [
         ("Tank volume", each if count == 1 else f"{count} × {each}"),
         ("Cargo on board", f"{facts['initial_cargo_t']:,.0f} t"),
-        ("Bubble point" if mixture else "Boiling point", f"{facts['boiling_point_c']:.2f} °C"),
+        ("Bubble point at departure pressure" if mixture else
+         "Boiling point at departure pressure", f"{facts['boiling_point_c']:.2f} °C"),
         ("Liquid density", f"{facts['liquid_density_kg_m3']:.1f} kg/m³"),
         ("IGC loading limit", f"{facts['loading_limit_pct']:.2f} %"),
         ("Fill at departure", f"{fill:.2f} %"),

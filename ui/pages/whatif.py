@@ -41,7 +41,8 @@ def _controls(data: dict) -> tuple[str, float | None, float | None, bool]:
         _seed("whatif.start_day", round(total / 4.0, 1))
         start = b.number_input("Fails on day", key="whatif.start_day", value=None, step=0.5,
                                format="%.2f", placeholder="day",
-                               help=f"Days from departure; the voyage lasts {total:g} days.")
+                               help="Days from departure; the voyage lasts "
+                                    f"{round(total, 2):g} days.")
         _remember("whatif.start_day")
         _seed("whatif.hours", None)
         hours = c.number_input("For how long (h)", key="whatif.hours", value=None, step=6.0,
@@ -66,9 +67,9 @@ def _controls(data: dict) -> tuple[str, float | None, float | None, bool]:
 def _problems_of_inputs(start, hours, total) -> list[str]:
     problems = []
     if start is None:
-        problems.append(f"Fails on day is empty: give a day from 0 to below {total:g}")
+        problems.append(f"Fails on day is empty: give a day from 0 to below {round(total, 2):g}")
     elif not 0.0 <= start < total:
-        problems.append(f"Fails on day = {start:g}: must be from 0 to below {total:g} "
+        problems.append(f"Fails on day = {start:g}: must be from 0 to below {round(total, 2):g} "
                         "(the voyage length in days)")
     if hours is not None and not hours > 0.0:
         problems.append(f"For how long = {hours:g} h: must be above 0 hours, or empty for "
