@@ -1477,7 +1477,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     try:
         raw = Path(path).read_bytes()
     except FileNotFoundError:
-        raise ScenarioError("file not found", source) from None
+        near = Path(source + ".toml")
+        hint = f" (did you mean {near}?)" if near.is_file() else ""
+        raise ScenarioError("file not found" + hint, source) from None
     except IsADirectoryError:
         raise ScenarioError("is a folder, not a scenario file", source) from None
     except PermissionError:

@@ -390,8 +390,10 @@ def check_value(data: dict, key: str, value: Any, option: str = "--vary") -> Non
         return
     if spec.kind == "number":
         if isinstance(value, str) or isinstance(value, bool):
+            hint = ("; a range is written start:stop:step, a list a,b,c"
+                    if option == "--vary" and isinstance(value, str) else "")
             raise SweepError(f"{option} {key}={value}: must be a number; allowed: "
-                             f"{spec.range_text()}")
+                             f"{spec.range_text()}{hint}")
         if not math.isfinite(value) or not spec.in_range(value):
             raise SweepError(f"{option} {key}={value}: must be {spec.range_text()}")
         return
