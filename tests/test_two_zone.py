@@ -530,7 +530,7 @@ def test_work_count_bounded_on_the_benchmark_voyage():
     from sim.bench import _closed_tank
 
     res = simulate(two_zone(_closed_tank()))
-    # 2518 calls measured on the development machine; about twice that flags a regression
+    # 2434 calls measured on the development machine; about twice that flags a regression
     assert res.stats["rhs_calls"] < 5000
 
 
