@@ -351,7 +351,8 @@ def cmd_sweep(args) -> int:
     where = {
         "serial": "in this process",
         "processes": f"on {info.workers} local processes",
-        "dask": f"on the Dask cluster at {info.address} ({info.workers} threads)",
+        "dask": f"on the Dask cluster at {info.address} ({info.workers} worker "
+                f"thread{'s' if info.workers != 1 else ''} in all)",
     }
     print(
         f"{result.title}: {len(result.rows)} cases, {len(invalid)} invalid, "
