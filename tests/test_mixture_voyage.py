@@ -501,3 +501,31 @@ def test_a_blend_heos_cannot_tabulate_near_its_critical_region_keeps_heos():
     direct = bubble_point_temperature(Mixture.from_fractions(blend), pressure, backends=("HEOS",))
     assert sat.at(sat.temperature(pressure)).rho_liquid == pytest.approx(direct.liquid.density,
                                                                          rel=1e-4)
+
+
+def test_a_blend_vented_to_the_end_of_its_heel_stops_heel_exhausted():
+    """Venting a propane/n-butane heel to nothing: the integrator's trial steps reach
+    past the last liquid (all vapour), where the phase split has no root in [0, 1];
+    the run used to stop with "no two-phase state fits". The vapour fraction may now
+    pass 1 a little (negative liquid), as it may pass 0 at liquid-full, so the
+    heel-exhausted event is found."""
+    text = _toml({"propane": 0.5, "n-butane": 0.5}, insulation="u_w_m2k = 5.0",
+                 tank="", legs="""[[leg]]
+days = 20.0
+air_c = 35.0
+sea_c = 30.0""").replace("diameter_m = 12.0", "diameter_m = 4.0").replace(
+        "fill_pct = 95.0", "fill_pct = 5.0").replace("relief_set_barg = 0.7",
+                                                       "relief_set_barg = 0.5").replace(
+        "pressure_barg = 0.1", "pressure_barg = 0.5")
+    res = simulate(loads_scenario(text))
+    assert res.status == "stopped" and res.events[-1].kind == "heel-exhausted"
+    s = res.summary
+    assert s["initial_cargo_t"] - s["final_cargo_t"] == pytest.approx(s["vented_t"], rel=1e-9)
+    last = res.timeseries.iloc[-1]
+    # reference: CoolProp HEOS bubble point of the last liquid at the last pressure
+    from sim.mixture import bubble_point_temperature
+
+    x = {"propane": last["x_propane"], "n-butane": last["x_n-butane"]}
+    ref = bubble_point_temperature(x, (last["pressure_barg"] + 1.01325) * 1e5,
+                                   backends=("HEOS",))
+    assert last["liquid_temp_c"] == pytest.approx(ref.temperature - 273.15, abs=0.05)

@@ -240,42 +240,48 @@ class MixtureEquilibriumModel:
             raise MixtureStateError("no two-phase state fits the tank contents")
         return best[1:]
 
+    def _newton(self, n, energy, total, temp, beta, q):
+        """Newton's method on (T, beta, ln p) from a start; None if it does not converge."""
+        for _ in range(40):
+            res, parts, jac = self._residual(n, energy, total, temp, beta, q)
+            if max(abs(res[0]), abs(res[1]), abs(res[2])) < 1e-13:
+                return total, temp, beta, q, parts, jac
+            try:
+                step = np.linalg.solve(jac, res)
+            except np.linalg.LinAlgError:
+                return None
+            dt, db, dq = (float(s) for s in step)
+            # Damp: a sensible temperature move, and keep every 1 + beta (K_i - 1)
+            # positive. beta may go slightly negative (past liquid-full) so the
+            # orchestrator's liquid-full event can find the crossing,
+            lam = 1.0
+            lam = min(lam, 2.0 / abs(dt)) if dt else lam
+            lam = min(lam, 0.3 / abs(dq)) if dq else lam
+            k_max, k_min = float(parts[1].max()), float(parts[1].min())
+            beta_min = -0.5 / (k_max - 1.0) if k_max > 1.0 else -0.5
+            # and slightly above 1 (past the heel's end, liquid moles negative) so
+            # the heel-exhausted event can find that crossing too
+            beta_max = 0.5 * (1.0 + 1.0 / (1.0 - k_min)) if k_min < 1.0 else 1.0
+            while not (beta_min < beta - lam * db < beta_max) and lam > 1e-6:
+                lam *= 0.5
+            temp, beta, q = temp - lam * dt, beta - lam * db, q - lam * dq
+            if abs(lam * dt) < 1e-12 * temp and abs(lam * dq) < 1e-13 and lam == 1.0:
+                res, parts, jac = self._residual(n, energy, total, temp, beta, q)
+                return total, temp, beta, q, parts, jac
+        return None
+
     def _solve(self, n, energy):
         total = float(n.sum())
-        guess = self._guess if self._guess is not None else self._first_guess(n, energy, total)
-        temp, beta, q = guess
-        for attempt in range(2):
-            for _ in range(40):
-                res, parts, jac = self._residual(n, energy, total, temp, beta, q)
-                if max(abs(res[0]), abs(res[1]), abs(res[2])) < 1e-13:
-                    self._guess = (temp, beta, q)
-                    return total, temp, beta, q, parts, jac
-                try:
-                    step = np.linalg.solve(jac, res)
-                except np.linalg.LinAlgError:
-                    break
-                dt, db, dq = (float(s) for s in step)
-                # Damp: a sensible temperature move, and keep every 1 + beta (K_i - 1)
-                # positive. beta may go slightly negative (past liquid-full) so the
-                # orchestrator's liquid-full event can find the crossing.
-                lam = 1.0
-                lam = min(lam, 2.0 / abs(dt)) if dt else lam
-                lam = min(lam, 0.3 / abs(dq)) if dq else lam
-                k_max = float(parts[1].max())
-                beta_min = -0.5 / (k_max - 1.0) if k_max > 1.0 else -0.5
-                while not (beta_min < beta - lam * db < 1.0) and lam > 1e-6:
-                    lam *= 0.5
-                temp, beta, q = temp - lam * dt, beta - lam * db, q - lam * dq
-                if abs(lam * dt) < 1e-12 * temp and abs(lam * dq) < 1e-13 and lam == 1.0:
-                    res, parts, jac = self._residual(n, energy, total, temp, beta, q)
-                    self._guess = (temp, beta, q)
-                    return total, temp, beta, q, parts, jac
-            if attempt == 0:
-                temp, beta, q = self._first_guess(n, energy, total)
-        raise MixtureStateError(
-            f"mixture tank state did not converge (last T = {temp:.3f} K, "
-            f"vapour mole fraction {beta:.4g})"
-        )
+        out = None
+        if self._guess is not None:
+            out = self._newton(n, energy, total, *self._guess)
+        if out is None:
+            out = self._newton(n, energy, total, *self._first_guess(n, energy, total))
+        if out is None:
+            raise MixtureStateError("mixture tank state did not converge (the contents lie "
+                                    "outside the two-phase states the tables describe)")
+        self._guess = out[1:4]
+        return out
 
     # -- interface for the orchestrator --------------------------------------------
     def evaluate(self, y, air_temperature: float, sea_temperature: float) -> TankState:
