@@ -838,7 +838,8 @@ def size_plant(data: dict, *, design_air_c: float = DESIGN_AIR_C,
     minimum = max(steady - credit, 0.0)
     if heat <= 0.0:
         notes.append("the design ambient is colder than the cargo at the hold pressure: "
-                     "no heat flows in and no plant is needed to hold it")
+                     "heat flows out of the tank (heat_in_kw is negative) and no plant is "
+                     "needed to hold it")
 
     # (b) through the scenario's outages
     outages = list(plant_raw.get("outage", [])) if plant_raw else []
@@ -936,7 +937,8 @@ def _assumptions(fuel_credit: bool, specific_power, model: str) -> list[str]:
     if model != "equilibrium":
         out.append(f"steady capacity Q/h_fg is the equilibrium-model balance (saturated vapour "
                    f"and liquid); the scenario's {model} model may hold the pressure with a "
-                   "somewhat different rate: check with a run at the design capacity")
+                   "somewhat different rate: check with a run at the design capacity. "
+                   f"Holding times are runs of the scenario's {model} model")
     out += [
         "condensate returned as saturated liquid at the hold pressure; refrigeration duty = "
         "design capacity x latent heat at the hold temperature",
