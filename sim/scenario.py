@@ -1685,6 +1685,13 @@ def set_key(data: dict, dotted_key: str, value: Any) -> dict:
         elif isinstance(node, dict):
             if last:
                 node[part] = value
+            elif part not in node and parts[depth + 1].lstrip("-").isdigit():
+                # an index into an array of tables that is not there: never a table
+                # keyed "0", which validation would then call a bad [[...]] array
+                name = ".".join(parts[: depth + 1])
+                raise ScenarioError(f"set_key {dotted_key}: there is no {name} array, so "
+                                    f"index {parts[depth + 1]} is out of range; add the "
+                                    f"[[{name}]] entries first")
             else:
                 node = node.setdefault(part, {})
         else:

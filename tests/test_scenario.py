@@ -691,6 +691,9 @@ def test_set_key():
     for bad in ("leg.5.days", "leg.x.days", "tank.fill_pct.x", "", "tank..fill_pct"):
         with pytest.raises(ScenarioError):
             set_key(d, bad, 1.0)
+    # an index into an array that is not there is out of range, not a table keyed "0"
+    with pytest.raises(ScenarioError, match=r"no reliquefaction.outage array"):
+        set_key(default_scenario_dict(), "reliquefaction.outage.0.hours", 48.0)
 
 
 def test_docs_cover_every_key_and_example_parses():
