@@ -111,6 +111,11 @@ def cmd_validate(args) -> int:
         f"heat in {facts['heat_in_kw']:.1f} kW "
         f"(BOR {facts['equivalent_bor_pct_day']:.3f} %/day on leg 1)"
     )
+    fill_pct = 100.0 * scenario.tank.fill
+    if fill_pct < 2.0:
+        # a heel is a real loading case, but 0.97 is also 97 % typed as a fraction
+        print(f"  note: tank.fill_pct = {fill_pct:g} % is a heel; a laden tank is written "
+              f"as a percentage (e.g. 97, not 0.97)")
     return EXIT_OK
 
 

@@ -117,3 +117,15 @@ def test_cargo_listing(capsys):
 def test_docstring_examples(module):
     failures, tried = doctest.testmod(module)
     assert tried > 0 and failures == 0
+
+
+def test_validate_notes_a_fill_that_looks_like_a_fraction(tmp_path, capsys):
+    from sim.scenario import default_scenario_dict, scenario_to_toml, set_key
+
+    path = tmp_path / "heel.toml"
+    path.write_text(scenario_to_toml(set_key(default_scenario_dict(), "tank.fill_pct", 0.97)))
+    assert main(["validate", str(path)]) == 0  # a heel is a real case: not refused
+    assert "e.g. 97, not 0.97" in capsys.readouterr().out
+    path.write_text(scenario_to_toml(default_scenario_dict()))
+    assert main(["validate", str(path)]) == 0
+    assert "is a heel" not in capsys.readouterr().out
