@@ -452,3 +452,13 @@ def test_cluster_failures_are_told_whole_with_their_cause():
     # one line, the whole sentence (it used to stop at "This frequently"), and the cause
     assert "\n" not in words and "frequently occurs if" in words
     assert words.endswith("(caused by ModuleNotFoundError: No module named 'sim')")
+
+
+def test_app_page_default_grid_keeps_the_insulation_fixed():
+    # the page's starting grid must not fall into the rated-boil-off / fill trap
+    at = _page()
+    at.get("form_submit_button")[0].click().run()
+    assert not at.exception and not at.error
+    result = at.session_state["sweep.result"][1]
+    assert len(result.rows) == 15 and "tank.fill_pct" not in result.keys
+    assert result.info.warnings == []

@@ -26,19 +26,38 @@ def _lines(text: str | None) -> list[str]:
             and not line.strip().startswith("#")]
 
 
-def _inputs() -> tuple[str, list[str], int, int | None, bool]:
+def _defaults(data: dict) -> tuple[str, str]:
+    """Starting grid and sample for a set-up: the insulation as the set-up gives it
+    (a rated boil-off or a U-value) and the air temperature of every leg. Fill is
+    left out: with a rated boil-off and no rated fill it would move the U-value too."""
+    ins = data.get("insulation") or {}
+    if "u_w_m2k" in ins:
+        u = float(ins["u_w_m2k"])
+        grid_ins = "insulation.u_w_m2k=" + ",".join(f"{f * u:.4g}" for f in (0.8, 1.0, 1.2))
+        sample_ins = f"insulation.u_w_m2k=normal:{u:.4g}:{0.1 * u:.3g}"
+    else:
+        bor = float(ins.get("rated_bor_pct_day", 0.1))
+        grid_ins = "insulation.rated_bor_pct_day=" + ",".join(
+            f"{f * bor:.4g}" for f in (0.8, 1.0, 1.2))
+        sample_ins = f"insulation.rated_bor_pct_day=normal:{bor:.4g}:{0.1 * bor:.3g}"
+    return (f"leg.*.air_c=25:45:5\n{grid_ins}",
+            f"{sample_ins}\nleg.*.air_c=triangular:25:32:40")
+
+
+def _inputs(data: dict) -> tuple[str, list[str], int, int | None, bool]:
+    grid, sample = _defaults(data)
     with st.form("sweep.form", border=True):
         mode = st.radio("Kind", [GRID, SAMPLE], key="sweep.mode", horizontal=True)
         left, right = st.columns(2)
         vary = left.text_area(
             "Vary (grid): one KEY=VALUES per line", key="sweep.vary", height=120,
-            value="tank.fill_pct=90:98:2\ninsulation.rated_bor_pct_day=0.08,0.10,0.12",
+            value=grid,
             help="Keys as in the scenario file: tank.fill_pct, leg.0.air_c (first leg), "
                  "leg.*.air_c (every leg). Values: a list 0.02,0.03 or a range start:stop:step "
                  "(the stop is included when it lands on the grid). Every combination runs.")
         sample = right.text_area(
             "Sample (Monte Carlo): one KEY=DIST per line", key="sweep.sample", height=120,
-            value="insulation.rated_bor_pct_day=normal:0.10:0.01\nleg.*.air_c=triangular:25:32:40",
+            value=sample,
             help="normal:MEAN:SD, uniform:LOW:HIGH or triangular:LOW:MODE:HIGH.")
         a, b, _ = st.columns([1, 1, 2])
         cases = a.number_input("Cases (Monte Carlo)", key="sweep.cases", value=100,
@@ -179,7 +198,7 @@ def render() -> None:
         widgets.problem_list(check.problems, "The set-up has problems; fix them on Set-up first:",
                              setup=True)
         return
-    mode, lines, cases, seed, submitted = _inputs()
+    mode, lines, cases, seed, submitted = _inputs(data)
     if submitted:
         items, total, problems = _parse(data, mode, lines, cases)
         if problems:
