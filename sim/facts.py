@@ -5,6 +5,8 @@ Returned in trade units with unit-suffixed keys, like the run summary.
 
 from __future__ import annotations
 
+import functools
+
 from . import heat as heat_mod
 from .igc import loading_limit
 from .scenario import Scenario, cargo_table
@@ -34,13 +36,21 @@ def vented_kg_per_joule(scenario: Scenario, table, fill: float) -> float:
     if scenario.mole_fractions is None:
         sat = table.at(table.temperature(tank.pressure))
         return (1.0 - sat.rho_vapour / sat.rho_liquid) / sat.latent_heat
+    return _mixture_vented_kg_per_joule(scenario.mole_fractions, tank.shape.volume(), fill,
+                                        tank.pressure)
+
+
+@functools.lru_cache(maxsize=64)
+def _mixture_vented_kg_per_joule(fractions, volume: float, fill: float,
+                                 pressure: float) -> float:
+    """:func:`vented_kg_per_joule` of a mixture (cached: the model's first state
+    builds a local property table, ~0.1 s, and the set-up page asks on every edit)."""
     from .mixture_table import loaded_mixture_tables
     from .models.mixture_equilibrium import MixtureEquilibriumModel
 
     # any heat will do: a0 is proportional to it, b_out does not depend on it
-    model = MixtureEquilibriumModel(loaded_mixture_tables(scenario.mole_fractions)[0],
-                                    tank.shape.volume(), 1.0, 0.0)
-    y0 = model.initial_state(fill, tank.pressure)
+    model = MixtureEquilibriumModel(loaded_mixture_tables(fractions)[0], volume, 1.0, 0.0)
+    y0 = model.initial_state(fill, pressure)
     state = model.evaluate(y0, model.table.temperature_max + 100.0, 0.0)
     a0, b_out, _ = model.pressure_rate_coefficients(state)
     return a0 / b_out / state.heat_in

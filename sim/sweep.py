@@ -936,10 +936,11 @@ def rating_notes(data: dict, keys: Sequence[str]) -> list[str]:
               and not (k == "tank.fill_pct" and "rated_fill_pct" in ins)]
     if not moving:
         return []
+    fix = ("insulation.rated_fill_pct, or u_w_m2k," if moving == ["tank.fill_pct"]
+           else "a u_w_m2k")
     return [f"the U-value is calibrated from insulation.rated_bor_pct_day for each case, and "
             f"{', '.join(dict.fromkeys(moving))} moves that calibration: the insulation "
-            "changes from case to case (give insulation.rated_fill_pct, or u_w_m2k, to keep "
-            "it fixed while the fill varies)"]
+            f"changes from case to case (give {fix} to keep it fixed)"]
 
 
 def run_sweep(data: dict, variations: Sequence[Variation], workers: int | None = None,
